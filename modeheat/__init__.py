@@ -1,0 +1,31 @@
+"""modeheat — from a phonon density of states to heat capacity, entropy, energy and θ_D(T)."""
+
+from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
+from .thermo import (
+    CAUTION,
+    effective_debye_temperature,
+    entropy,
+    free_energy,
+    heat_capacity,
+    internal_energy,
+    thermo,
+    zero_point_energy,
+)
+
+__version__ = "0.1.0"
+
+__all__ = [
+    "CAUTION",
+    "InputError",
+    "ModeheatError",
+    "ModeheatWarning",
+    "NoDebyeTemperatureWarning",
+    "SpectrumWarning",
+    "effective_debye_temperature",
+    "entropy",
+    "free_energy",
+    "heat_capacity",
+    "internal_energy",
+    "thermo",
+    "zero_point_energy",
+]

@@ -1,0 +1,243 @@
+"""The evaluation engine behind every thermodynamic quantity.
+
+Any source (a sampled spectrum, a list of modes, a model mixture) reduces to a
+:class:`ModeSet`: Einstein-like nodes (θ_j, w_j), closed-form Debye branches and
+non-vibrational extras (electronic, two-level terms).  Its heat capacity, entropy,
+energy and free energy are sums over nodes of a kernel that depends on θ/T alone.
+
+On logarithmic grids u = ln θ and v = ln T that kernel depends only on u − v, so the
+node sum is a correlation.  Nodes are spread onto a uniform ln θ grid (step
+``DELTA``) with ``SPREAD``-point Lagrange weights, which is exact for any kernel that
+is a polynomial of degree < SPREAD over the stencil; the correlation is one FFT per
+kernel, and values at the requested temperatures come from ``GATHER``-point
+Lagrange interpolation in ln T.  The spreading is cached per ModeSet.  Small
+problems, and temperatures so low that every node is frozen out (θ_min/T > ``FROZEN``),
+are summed directly, which keeps the relative accuracy of exponentially small values.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Protocol
+
+import numpy as np
+from scipy import fft as _fft
+
+from . import special
+
+__all__ = ["ModeSet", "Extra"]
+
+DELTA = 1.0 / 512.0  # ln-grid step for θ and T
+SPREAD = 4  # points per node on the ln θ grid
+GATHER = 8  # points per temperature on the ln T grid
+FROZEN = 15.0  # θ_min/T above which the node sum is done directly
+DIRECT_LIMIT = 40_000  # nodes × temperatures below which the direct sum is cheaper
+_CHUNK = 2_000_000  # elements per block in the direct sum
+
+
+class Extra(Protocol):
+    """A non-vibrational term: C/R, S/R, U/R [K] and F/R [K] per formula unit at T > 0."""
+
+    def terms(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]: ...
+
+
+def _kernels(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Einstein C/k, U_th/(kT) and F_th/(kT) per mode at x = θ/T > 0."""
+    with np.errstate(over="ignore", under="ignore"):
+        ex = np.exp(-x)
+        d = -np.expm1(-x)
+        e = x * ex / d
+        cv = e * x / d
+        f = np.where(x < 0.6931471805599453, np.log(d), np.log1p(-ex))
+    return cv, e, f
+
+
+def _lagrange_weights(t: np.ndarray, offsets: np.ndarray) -> np.ndarray:
+    """Lagrange basis at points `offsets`, evaluated at t; shape (len(offsets), len(t))."""
+    p = len(offsets)
+    diff = t[None, :] - offsets[:, None]
+    left = np.ones_like(diff)
+    right = np.ones_like(diff)
+    for m in range(1, p):
+        left[m] = left[m - 1] * diff[m - 1]
+        right[p - 1 - m] = right[p - m] * diff[p - m]
+    denom = np.array(
+        [math.prod(offsets[m] - offsets[j] for j in range(p) if j != m) for m in range(p)]
+    )
+    return left * right / denom[:, None]
+
+
+_SPREAD_OFFSETS = np.arange(SPREAD, dtype=float) - (SPREAD // 2 - 1)
+_GATHER_OFFSETS = np.arange(GATHER, dtype=float) - (GATHER // 2 - 1)
+
+
+@dataclass(frozen=True, eq=False)
+class ModeSet:
+    """Everything the engine needs to know about a source, per formula unit.
+
+    Parameters
+    ----------
+    theta : ndarray — node temperature equivalents in K (> 0)
+    weight : ndarray — modes carried by each node (≥ 0)
+    debye : tuple of (theta_K, modes, dim) — closed-form Debye branches
+    extras : tuple of Extra — non-vibrational terms
+    atoms : float — atoms per formula unit
+    """
+
+    theta: np.ndarray
+    weight: np.ndarray
+    debye: tuple[tuple[float, float, int], ...] = ()
+    extras: tuple = ()
+    atoms: float = 1.0
+    _cache: dict = field(default_factory=dict, repr=False, compare=False)
+
+    # --- summaries -----------------------------------------------------------
+    @property
+    def modes(self) -> float:
+        """Vibrational modes per formula unit."""
+        return float(np.sum(self.weight)) + sum(m for _, m, _ in self.debye)
+
+    def zero_point(self) -> float:
+        """Zero-point energy U_0/R in K per formula unit."""
+        nodes = 0.5 * float(np.dot(self.weight, self.theta))
+        branches = sum(0.5 * m * th * d / (d + 1) for th, m, d in self.debye)
+        return nodes + branches
+
+    def moment(self, n: float) -> float:
+        """Mean of θⁿ over all modes (n > −dim of every Debye branch), K**n; n = 0 gives ⟨ln θ⟩."""
+        total = self.modes
+        if n == 0:
+            nodes = float(np.dot(self.weight, np.log(self.theta)))
+            branches = sum(m * (math.log(th) - 1.0 / d) for th, m, d in self.debye)
+        else:
+            nodes = float(np.dot(self.weight, self.theta**n))
+            branches = sum(m * d / (d + n) * th**n for th, m, d in self.debye)
+        return (nodes + branches) / total
+
+    def low_temperature_theta(self) -> float:
+        """Limit of the effective Debye temperature as T → 0, in K.
+
+        From the ω² branches: (3·atoms / Σ modes·θ⁻³)^(1/3).  Lower-dimensional branches
+        make C fall slower than T³ (limit 0); no branch at all, faster (limit ∞).
+        """
+        if any(d < 3 and m > 0 for _, m, d in self.debye):
+            return 0.0
+        s = sum(m / th**3 for th, m, d in self.debye if d == 3)
+        if s <= 0:
+            return math.inf
+        return (3.0 * self.atoms / s) ** (1.0 / 3.0)
+
+    # --- evaluation ------------------------------------------------------------
+    def evaluate(self, T: np.ndarray) -> dict[str, np.ndarray]:
+        """C/R, S/R, U/R [K], F/R [K] per formula unit, and the lattice part of C/R.
+
+        T must be ≥ 0 (K); T = 0 gives the limits C = S = 0, U = F = U_0.
+        """
+        T = np.asarray(T, dtype=float)
+        shape = T.shape
+        T = T.ravel()
+        cv = np.zeros_like(T)
+        s = np.zeros_like(T)
+        e = np.zeros_like(T)  # U_th/(RT)
+        f = np.zeros_like(T)  # F_th/(RT)
+        hot = T > 0
+        Th = T[hot]
+        if Th.size:
+            c1, e1, f1 = self._nodes(Th)
+            for th, m, d in self.debye:
+                x = th / Th
+                c1 = c1 + m * special.debye_cv(x, d)
+                e1 = e1 + m * special.debye_energy(x, d)
+                f1 = f1 + m * special.debye_free_energy(x, d)
+            cv[hot], e[hot], f[hot] = c1, e1, f1
+            s[hot] = e1 - f1
+        u0 = self.zero_point()
+        out = {
+            "cv_lattice": cv.copy(),
+            "cv": cv,
+            "s": s,
+            "u": u0 + T * e,
+            "f": u0 + T * f,
+        }
+        if self.extras and Th.size:
+            for extra in self.extras:
+                ce, se, ue, fe = extra.terms(Th)
+                out["cv"][hot] += ce
+                out["s"][hot] += se
+                out["u"][hot] += ue
+                out["f"][hot] += fe
+        return {k: v.reshape(shape) for k, v in out.items()}
+
+    # --- node sums -----------------------------------------------------------------
+    def _nodes(self, T: np.ndarray):
+        n = self.theta.size
+        zeros = np.zeros_like(T)
+        if n == 0:
+            return zeros, zeros.copy(), zeros.copy()
+        if n * T.size <= DIRECT_LIMIT:
+            return _direct(self.theta, self.weight, T)
+        cv, e, f = zeros, zeros.copy(), zeros.copy()
+        tmin = float(self.theta.min())
+        frozen = T < tmin / FROZEN
+        if np.any(frozen):
+            # Only nodes within ~50 kT of the lowest one matter when all are frozen out.
+            keep = self.theta < tmin + 50.0 * float(T[frozen].max())
+            cv[frozen], e[frozen], f[frozen] = _direct(self.theta[keep], self.weight[keep], T[frozen])
+        warm = ~frozen
+        if np.any(warm):
+            cv[warm], e[warm], f[warm] = self._correlate(T[warm])
+        return cv, e, f
+
+    def _spread(self) -> tuple[int, np.ndarray]:
+        """Node weights on the ln θ grid u_i = i·DELTA: (first index, weights)."""
+        if "spread" not in self._cache:
+            pos = np.log(self.theta) / DELTA
+            base = np.floor(pos)
+            lw = _lagrange_weights(pos - base, _SPREAD_OFFSETS)
+            idx = base.astype(np.int64)[None, :] + _SPREAD_OFFSETS.astype(np.int64)[:, None]
+            first = int(idx.min())
+            grid = np.bincount(
+                (idx - first).ravel(), weights=(lw * self.weight[None, :]).ravel()
+            )
+            self._cache["spread"] = (first, grid)
+        return self._cache["spread"]
+
+    def _correlate(self, T: np.ndarray):
+        first, grid = self._spread()
+        pos = np.log(T) / DELTA
+        base = np.floor(pos)
+        kmin = int(base.min()) + int(_GATHER_OFFSETS[0])
+        kmax = int(base.max()) + int(_GATHER_OFFSETS[-1])
+        lw, lv = grid.size, kmax - kmin + 1
+        # kernel at s = (i − k)·DELTA for every node index i and temperature index k
+        m = np.arange(first - kmax, first + lw - 1 - kmin + 1)
+        kern = _kernels(np.exp(m * DELTA))
+        size = _fft.next_fast_len(lw + m.size - 1, real=True)
+        a = _fft.rfft(grid[::-1], size)
+        rows = []
+        for kk in kern:
+            conv = _fft.irfft(a * _fft.rfft(kk, size), size)
+            # corr[l] = Σ_i grid[i] kk[i + l] with l = kmax − k
+            corr = conv[lw - 1 : lw - 1 + lv]
+            rows.append(corr[::-1])  # index k − kmin
+        table = np.stack(rows)
+        lg = _lagrange_weights(pos - base, _GATHER_OFFSETS)
+        idx = base.astype(np.int64)[None, :] + _GATHER_OFFSETS.astype(np.int64)[:, None] - kmin
+        vals = np.einsum("gt,qgt->qt", lg, table[:, idx])
+        return vals[0], vals[1], vals[2]
+
+
+def _direct(theta: np.ndarray, weight: np.ndarray, T: np.ndarray):
+    """Σ_j w_j K(θ_j/T) by blocks of temperatures."""
+    cv = np.empty_like(T)
+    e = np.empty_like(T)
+    f = np.empty_like(T)
+    step = max(1, _CHUNK // max(theta.size, 1))
+    for lo in range(0, T.size, step):
+        x = theta[None, :] / T[lo : lo + step, None]
+        k_cv, k_e, k_f = _kernels(x)
+        cv[lo : lo + step] = k_cv @ weight
+        e[lo : lo + step] = k_e @ weight
+        f[lo : lo + step] = k_f @ weight
+    return cv, e, f

@@ -1,0 +1,229 @@
+"""Heat capacity, entropy, energy, free energy and the effective Debye temperature.
+
+Every function takes a *source* — a :class:`~modeheat.Spectrum`, a model component
+or a mixture — and temperatures in K.  Results are molar: per mole of formula units
+(``per="formula"``, the default) or per mole of atoms (``per="atom"``).  Energies
+include the zero-point energy.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+
+import numpy as np
+import pandas as pd
+
+from . import special
+from ._engine import ModeSet
+from .errors import InputError, NoDebyeTemperatureWarning
+from .units import R
+
+__all__ = [
+    "thermo",
+    "heat_capacity",
+    "entropy",
+    "internal_energy",
+    "free_energy",
+    "zero_point_energy",
+    "effective_debye_temperature",
+    "CAUTION",
+]
+
+#: The caution every export carries.
+CAUTION = (
+    "Harmonic-model estimates. Verify against measurements before use in cryogenic or "
+    "thermal design, and defer to applicable codes and licensed engineering practice."
+)
+
+_PER = ("formula", "atom")
+
+
+def _modeset(source) -> ModeSet:
+    if isinstance(source, ModeSet):
+        return source
+    get = getattr(source, "modeset", None)
+    if get is None:
+        raise TypeError(
+            f"cannot compute thermodynamics of {type(source).__name__}: expected a Spectrum, "
+            "a model component or a mixture"
+        )
+    return get()
+
+
+def _temperatures(temperatures) -> np.ndarray:
+    T = np.atleast_1d(np.asarray(temperatures, dtype=float))
+    if T.ndim != 1:
+        raise InputError(f"temperatures must be one-dimensional, not of shape {T.shape}")
+    bad = np.flatnonzero(~np.isfinite(T) | (T < 0))
+    if bad.size:
+        raise InputError(
+            f"temperature {T[bad[0]]!r} is not a finite value ≥ 0 K", index=int(bad[0])
+        )
+    return T
+
+
+def _scale(ms: ModeSet, per: str) -> float:
+    if per not in _PER:
+        raise InputError(f"per must be one of {_PER}, not {per!r}")
+    return 1.0 if per == "formula" else 1.0 / ms.atoms
+
+
+def _evaluate(source, temperatures, per):
+    ms = _modeset(source)
+    T = _temperatures(temperatures)
+    return ms, T, ms.evaluate(T), R * _scale(ms, per)
+
+
+def heat_capacity(source, temperatures, *, per: str = "formula") -> np.ndarray:
+    """Isochoric heat capacity C_v in J/(mol K).
+
+    Parameters
+    ----------
+    source : Spectrum, component or mixture
+    temperatures : array_like — T in K, ≥ 0
+    per : {"formula", "atom"} — per mole of formula units or of atoms
+    """
+    _, _, r, k = _evaluate(source, temperatures, per)
+    return k * r["cv"]
+
+
+def entropy(source, temperatures, *, per: str = "formula") -> np.ndarray:
+    """Entropy S in J/(mol K) (0 at T = 0)."""
+    _, _, r, k = _evaluate(source, temperatures, per)
+    return k * r["s"]
+
+
+def internal_energy(source, temperatures, *, per: str = "formula") -> np.ndarray:
+    """Internal energy U in J/mol, zero-point energy included."""
+    _, _, r, k = _evaluate(source, temperatures, per)
+    return k * r["u"]
+
+
+def free_energy(source, temperatures, *, per: str = "formula") -> np.ndarray:
+    """Helmholtz free energy F = U − TS in J/mol, zero-point energy included."""
+    _, _, r, k = _evaluate(source, temperatures, per)
+    return k * r["f"]
+
+
+def zero_point_energy(source, *, per: str = "formula") -> float:
+    """Zero-point energy U_0 = Σ ħω/2 in J/mol."""
+    ms = _modeset(source)
+    return R * _scale(ms, per) * ms.zero_point()
+
+
+def thermo(source, temperatures, *, per: str = "formula") -> pd.DataFrame:
+    """The thermodynamic table of a source.
+
+    Parameters
+    ----------
+    source : Spectrum, component or mixture
+    temperatures : array_like — T in K, ≥ 0
+    per : {"formula", "atom"} — per mole of formula units or of atoms
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns ``T`` [K], ``Cv`` [J/(mol K)], ``S`` [J/(mol K)], ``U`` [J/mol],
+        ``F`` [J/mol] (both with zero point) and ``theta_D`` [K], the effective Debye
+        temperature of the lattice (vibrational) C_v.  ``attrs`` holds the units, the
+        basis, the source's name, the zero-point energy and the caution.
+    """
+    ms, T, r, k = _evaluate(source, temperatures, per)
+    theta = _lattice_theta(ms, T, r["cv_lattice"])
+    frame = pd.DataFrame(
+        {"T": T, "Cv": k * r["cv"], "S": k * r["s"], "U": k * r["u"], "F": k * r["f"], "theta_D": theta}
+    )
+    frame.attrs.update(
+        units={"T": "K", "Cv": "J/(mol K)", "S": "J/(mol K)", "U": "J/mol", "F": "J/mol", "theta_D": "K"},
+        per=per,
+        atoms=ms.atoms,
+        source=getattr(source, "name", None),
+        zero_point_energy=R * _scale(ms, per) * ms.zero_point(),
+        caution=CAUTION,
+    )
+    return frame
+
+
+def _lattice_theta(ms: ModeSet, T: np.ndarray, cv_lattice: np.ndarray) -> np.ndarray:
+    """Effective Debye temperature of the vibrational part, with its limits at T = 0 and T → ∞."""
+    modes = ms.modes
+    theta = np.full(T.shape, np.nan)
+    if modes <= 0:
+        return theta
+    theta[T == 0] = ms.low_temperature_theta()
+    hot = T > 0
+    # Far above every mode 1 − C/C_max is lost to rounding: use the Thirring series.
+    tmax = max([float(ms.theta.max()) if ms.theta.size else 0.0] + [th for th, _, _ in ms.debye])
+    classical = hot & (T > 20.0 * tmax)
+    if np.any(classical):
+        theta[classical] = _thirring_theta(ms, T[classical])
+    rest = hot & ~classical
+    c = cv_lattice[rest] / modes
+    x = special.debye_cv_inverse(c)
+    with np.errstate(divide="ignore"):
+        theta[rest] = T[rest] * x
+    return theta
+
+
+def _thirring_theta(ms: ModeSet, T: np.ndarray) -> np.ndarray:
+    """θ_D(T) for T ≫ every mode: match 1 − C/C_max of the Debye model to the moment series."""
+    _, coeffs = special._series_coefficients(3)
+    a = -coeffs[::-1][1:5]  # 1 − C_D/C_max = Σ a_j x^(2j), j = 1..4
+    moments = [ms.moment(2 * j) for j in range(1, 5)]
+    deficit = sum(a[j] * moments[j] / T ** (2 * j + 2) for j in range(4))
+    # The same series for a single Einstein mode: 1 − C_E = x²/12 − x⁴/240 + x⁶/6048 − …
+    e = np.array([1 / 12, -1 / 240, 1 / 6048, -1 / 172800])
+    deficit = sum(e[j] * moments[j] / T ** (2 * j + 2) for j in range(4))
+    y = np.sqrt(deficit / a[0])
+    for _ in range(4):
+        g = sum(a[j] * y ** (2 * j + 2) for j in range(4)) - deficit
+        dg = sum((2 * j + 2) * a[j] * y ** (2 * j + 1) for j in range(4))
+        y = y - g / dg
+    return T * y
+
+
+def effective_debye_temperature(temperatures, cv, *, atoms: float = 1.0) -> np.ndarray:
+    """Effective Debye temperature θ_D(T) in K from a heat capacity.
+
+    Solves C_v = 3·atoms·R·D(θ/T) at each temperature, where D is the Debye heat
+    capacity per mode (:func:`modeheat.special.debye_cv`).  Where no θ exists —
+    C ≤ 0, or C ≥ 3·atoms·R — the result is NaN and one warning says why.
+
+    Parameters
+    ----------
+    temperatures : array_like — T in K, > 0
+    cv : array_like — C_v in J/(mol K) per mole of formula units
+    atoms : float — atoms per formula unit
+
+    Notes
+    -----
+    A measured C_p above 3R per mole of atoms near room temperature is common: the
+    dilatation term C_p − C_v and the electronic γT add to the lattice C_v.  Convert
+    to C_v and remove the electronic term before asking for a Debye temperature.
+    """
+    T, c = np.broadcast_arrays(np.asarray(temperatures, dtype=float), np.asarray(cv, dtype=float))
+    if not atoms > 0:
+        raise InputError(f"atoms must be positive, not {atoms!r}")
+    per_mode = c / (3.0 * atoms * R)
+    x = special.debye_cv_inverse(per_mode)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        theta = np.where(T > 0, T * x, np.nan)
+    above = np.count_nonzero(per_mode >= 1)
+    below = np.count_nonzero(~(per_mode > 0) & np.isfinite(per_mode))
+    if above or below:
+        parts = []
+        if above:
+            parts.append(
+                f"{above} value(s) at or above the Dulong–Petit limit 3·atoms·R = "
+                f"{3 * atoms * R:.3f} J/(mol K) (a measured C_p above 3R is common: C_p − C_v and "
+                "the electronic term add to the lattice C_v; convert to C_v and remove γT first)"
+            )
+        if below:
+            parts.append(f"{below} value(s) ≤ 0")
+        warnings.warn(
+            "no effective Debye temperature for " + "; ".join(parts) + ": NaN returned",
+            NoDebyeTemperatureWarning,
+            stacklevel=2,
+        )
+    return theta
