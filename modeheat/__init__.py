@@ -1,6 +1,7 @@
 """modeheat — from a phonon density of states to heat capacity, entropy, energy and θ_D(T)."""
 
 from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
+from .spectrum import ReducedDensity, Spectrum, debye_temperature_from_sound
 from .thermo import (
     CAUTION,
     effective_debye_temperature,
@@ -21,6 +22,9 @@ __all__ = [
     "ModeheatWarning",
     "NoDebyeTemperatureWarning",
     "SpectrumWarning",
+    "ReducedDensity",
+    "Spectrum",
+    "debye_temperature_from_sound",
     "effective_debye_temperature",
     "entropy",
     "free_energy",

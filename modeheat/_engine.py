@@ -28,7 +28,7 @@ from . import special
 
 __all__ = ["ModeSet", "Extra"]
 
-DELTA = 1.0 / 512.0  # ln-grid step for θ and T
+DELTA = 1.0 / 256.0  # ln-grid step for θ and T
 SPREAD = 4  # points per node on the ln θ grid
 GATHER = 8  # points per temperature on the ln T grid
 FROZEN = 15.0  # θ_min/T above which the node sum is done directly
@@ -53,19 +53,18 @@ def _kernels(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return cv, e, f
 
 
-def _lagrange_weights(t: np.ndarray, offsets: np.ndarray) -> np.ndarray:
-    """Lagrange basis at points `offsets`, evaluated at t; shape (len(offsets), len(t))."""
+def _lagrange_weights(t: np.ndarray, offsets: np.ndarray) -> list[np.ndarray]:
+    """Lagrange basis polynomials on the points `offsets`, each evaluated at t."""
     p = len(offsets)
-    diff = t[None, :] - offsets[:, None]
-    left = np.ones_like(diff)
-    right = np.ones_like(diff)
-    for m in range(1, p):
-        left[m] = left[m - 1] * diff[m - 1]
-        right[p - 1 - m] = right[p - m] * diff[p - m]
-    denom = np.array(
-        [math.prod(offsets[m] - offsets[j] for j in range(p) if j != m) for m in range(p)]
-    )
-    return left * right / denom[:, None]
+    out = []
+    for m in range(p):
+        denom = math.prod(offsets[m] - offsets[j] for j in range(p) if j != m)
+        acc = np.full_like(t, 1.0 / denom)
+        for j in range(p):
+            if j != m:
+                acc *= t - offsets[j]
+        out.append(acc)
+    return out
 
 
 _SPREAD_OFFSETS = np.arange(SPREAD, dtype=float) - (SPREAD // 2 - 1)
@@ -146,10 +145,8 @@ class ModeSet:
         if Th.size:
             c1, e1, f1 = self._nodes(Th)
             for th, m, d in self.debye:
-                x = th / Th
-                c1 = c1 + m * special.debye_cv(x, d)
-                e1 = e1 + m * special.debye_energy(x, d)
-                f1 = f1 + m * special.debye_free_energy(x, d)
+                dc, de, df = special.debye_terms(th / Th, d)
+                c1, e1, f1 = c1 + m * dc, e1 + m * de, f1 + m * df
             cv[hot], e[hot], f[hot] = c1, e1, f1
             s[hot] = e1 - f1
         u0 = self.zero_point()
@@ -195,11 +192,14 @@ class ModeSet:
             pos = np.log(self.theta) / DELTA
             base = np.floor(pos)
             lw = _lagrange_weights(pos - base, _SPREAD_OFFSETS)
-            idx = base.astype(np.int64)[None, :] + _SPREAD_OFFSETS.astype(np.int64)[:, None]
-            first = int(idx.min())
-            grid = np.bincount(
-                (idx - first).ravel(), weights=(lw * self.weight[None, :]).ravel()
-            )
+            ibase = base.astype(np.int64)
+            first = int(ibase.min()) + int(_SPREAD_OFFSETS[0])
+            size = int(ibase.max()) + int(_SPREAD_OFFSETS[-1]) - first + 1
+            ibase -= first
+            grid = np.zeros(size)
+            for off, l in zip(_SPREAD_OFFSETS.astype(np.int64), lw):
+                l *= self.weight
+                grid += np.bincount(ibase + off, weights=l, minlength=size)
             self._cache["spread"] = (first, grid)
         return self._cache["spread"]
 
@@ -213,8 +213,13 @@ class ModeSet:
         # kernel at s = (i − k)·DELTA for every node index i and temperature index k
         m = np.arange(first - kmax, first + lw - 1 - kmin + 1)
         kern = _kernels(np.exp(m * DELTA))
-        size = _fft.next_fast_len(lw + m.size - 1, real=True)
-        a = _fft.rfft(grid[::-1], size)
+        # Only the lv outputs where the node grid lies wholly inside the kernel are
+        # needed, and circular wrap-around cannot reach them at this size.
+        size = _fft.next_fast_len(m.size, real=True)
+        key = ("rfft", size)
+        if key not in self._cache:
+            self._cache[key] = _fft.rfft(grid[::-1], size)
+        a = self._cache[key]
         rows = []
         for kk in kern:
             conv = _fft.irfft(a * _fft.rfft(kk, size), size)
@@ -223,8 +228,10 @@ class ModeSet:
             rows.append(corr[::-1])  # index k − kmin
         table = np.stack(rows)
         lg = _lagrange_weights(pos - base, _GATHER_OFFSETS)
-        idx = base.astype(np.int64)[None, :] + _GATHER_OFFSETS.astype(np.int64)[:, None] - kmin
-        vals = np.einsum("gt,qgt->qt", lg, table[:, idx])
+        ibase = base.astype(np.int64) - kmin
+        vals = np.zeros((3, T.size))
+        for off, l in zip(_GATHER_OFFSETS.astype(np.int64), lg):
+            vals += table[:, ibase + off] * l
         return vals[0], vals[1], vals[2]
 
 

@@ -1,0 +1,654 @@
+"""Phonon density of states: grid, units, normalisation, partials, moments.
+
+A :class:`Spectrum` is a vibrational density of states g(ω) per formula unit,
+normalised to 3·atoms modes.  It comes either from a sampled density on a frequency
+grid (``Spectrum(frequency, density)``) or from a list of mode frequencies
+(:meth:`Spectrum.from_modes`, e.g. every mode of a q-mesh).
+
+Between sampled points the density is taken linear in g/ω², so that an ω² spectrum is
+represented exactly (and linear in g on an interval that starts at ω = 0 when the
+low-temperature continuation is off).
+
+**Low-temperature continuation.**  A grid, or a finite list of modes, does not resolve
+the lowest frequencies, and they alone decide C_v at low T.  By default
+(``low_t="fit"``) the spectrum below a cut-off ω_c is replaced by a ω² branch carrying
+the same number of modes, so C_v follows the T³ law with the coefficient of the
+spectrum's own low-frequency part.  ``low_t=θ`` (a float, K) sets the branch from a
+Debye temperature instead (see :func:`debye_temperature_from_sound` for one from sound
+velocities), and ``low_t="off"`` uses the data as they are.  The default ω_c is the
+third sampled point above the first one with positive density (what the grid
+resolves); for a list of N modes it is the frequency of the max(20, N/10⁴)-th lowest
+mode, and below 200 modes there is no continuation.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass
+from typing import Mapping
+
+import numpy as np
+from scipy import constants as _c
+
+from ._engine import ModeSet
+from .errors import InputError, SpectrumWarning
+from .units import check_unit, kelvin_per
+
+__all__ = ["Spectrum", "ReducedDensity", "debye_temperature_from_sound"]
+
+_NOISE = 1e-2  # negative densities up to this fraction of the peak are clipped as noise
+_GAUSS = np.polynomial.legendre.leggauss(4)
+_MIN_MODES_FOR_FIT = 200
+_FIT_MODES = 20
+_FIT_FRACTION = 1e-4
+
+
+@dataclass(frozen=True)
+class ReducedDensity:
+    """The reduced density of states g(ω)/ω² against the Debye level.
+
+    Attributes
+    ----------
+    frequency : ndarray — in `unit`
+    reduced : ndarray — g/ω² in modes per formula unit per unit³
+    debye_level : float — 9·atoms/θ_D(0)³ in the same unit, the value for a Debye solid
+        with the spectrum's own low-temperature Debye temperature
+    unit : str
+    """
+
+    frequency: np.ndarray
+    reduced: np.ndarray
+    debye_level: float
+    unit: str
+
+
+def debye_temperature_from_sound(
+    v_longitudinal: float,
+    v_transverse: float | None = None,
+    *,
+    volume: float,
+    atoms: float = 1,
+) -> float:
+    """Debye temperature in K from sound velocities.
+
+    θ_D = (ħ/k)·v_m·(6π²·atoms/V)^(1/3), with the mean velocity
+    3/v_m³ = 1/v_L³ + 2/v_T³ (or v_m = v_L when only one velocity is given).
+
+    Parameters
+    ----------
+    v_longitudinal : float — longitudinal sound velocity in m/s
+    v_transverse : float, optional — transverse sound velocity in m/s
+    volume : float — volume per formula unit in Å³
+    atoms : float — atoms per formula unit
+    """
+    for label, v in (("v_longitudinal", v_longitudinal), ("v_transverse", v_transverse), ("volume", volume)):
+        if v is not None and not (np.isfinite(v) and v > 0):
+            raise InputError(f"{label} must be a positive number, not {v!r}")
+    if v_transverse is None:
+        vm = v_longitudinal
+    else:
+        vm = (3.0 / (1.0 / v_longitudinal**3 + 2.0 / v_transverse**3)) ** (1.0 / 3.0)
+    n = atoms / (volume * 1e-30)
+    return _c.hbar / _c.k * vm * (6.0 * math.pi**2 * n) ** (1.0 / 3.0)
+
+
+def _vector(name: str, values) -> np.ndarray:
+    try:
+        a = np.asarray(values, dtype=float)
+    except (TypeError, ValueError) as exc:
+        raise InputError(f"{name} must be numbers ({exc})") from None
+    if a.ndim != 1:
+        raise InputError(f"{name} must be one-dimensional, not of shape {a.shape}")
+    bad = np.flatnonzero(~np.isfinite(a))
+    if bad.size:
+        raise InputError(f"{name} is {a[bad[0]]!r}, not a finite number", index=int(bad[0]))
+    return a
+
+
+def _check_atoms(atoms) -> float:
+    try:
+        a = float(atoms)
+    except (TypeError, ValueError):
+        raise InputError(f"atoms must be a positive number, not {atoms!r}") from None
+    if not (math.isfinite(a) and a > 0):
+        raise InputError(f"atoms must be a positive number, not {atoms!r}")
+    return a
+
+
+def _label(name) -> str:
+    return f"spectrum {name!r}" if name else "spectrum"
+
+
+def _clip_noise(name: str, values: np.ndarray, who: str, order: np.ndarray) -> np.ndarray:
+    """Clip tiny negative densities with a warning; large ones are an error."""
+    if values.size == 0 or values.min() >= 0:
+        return values
+    peak = float(np.abs(values).max())
+    worst = int(np.argmin(values))
+    if -values[worst] > _NOISE * peak:
+        raise InputError(
+            f"{name} is negative ({values[worst]:.6g}, {-values[worst] / peak:.1%} of the peak); "
+            f"a density of states cannot be negative",
+            index=int(order[worst]),
+        )
+    n = int(np.count_nonzero(values < 0))
+    warnings.warn(
+        f"{who}: {n} slightly negative {name} value(s) (at most {-values[worst] / peak:.2%} of the "
+        "peak) clipped to 0 as noise",
+        SpectrumWarning,
+        stacklevel=4,
+    )
+    return np.clip(values, 0.0, None)
+
+
+def _interval_nodes(x: np.ndarray, g: np.ndarray, lo: float, ratio_form: np.ndarray):
+    """Gauss–Legendre nodes and weights of ∫ g over the sampled intervals above `lo`.
+
+    Interval i spans [x_i, x_i+1]; where ratio_form[i] the density is linear in g/x²,
+    else linear in g.  Parts of intervals below `lo` are left out.
+    """
+    a, b = x[:-1], x[1:]
+    ga, gb = g[:-1], g[1:]
+    a_eff = np.maximum(a, lo)
+    keep = b > a_eff
+    a, b, ga, gb, a_eff, ratio_form = a[keep], b[keep], ga[keep], gb[keep], a_eff[keep], ratio_form[keep]
+    t, w = _GAUSS
+    half = 0.5 * (b - a_eff)
+    nodes = (0.5 * (a_eff + b))[:, None] + half[:, None] * t[None, :]
+    frac = (nodes - a[:, None]) / (b - a)[:, None]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rb = gb / b**2
+        # An interval that starts at ω = 0 has no g/ω² there: it continues the right end's.
+        ra = np.where(a > 0, ga / np.where(a > 0, a, 1.0) ** 2, rb)
+    dens_ratio = nodes**2 * (ra[:, None] + (rb - ra)[:, None] * frac)
+    dens_lin = ga[:, None] + (gb - ga)[:, None] * frac
+    dens = np.where(ratio_form[:, None], dens_ratio, dens_lin)
+    return nodes.ravel(), (dens * half[:, None] * w[None, :]).ravel()
+
+
+class Spectrum:
+    """A phonon density of states per formula unit, normalised to 3·atoms modes.
+
+    Parameters
+    ----------
+    frequency : array_like — frequency grid in `unit`; negative values are imaginary
+        modes, which are excluded with a warning
+    density : array_like — g(ω) on that grid, any normalisation (modes per unit)
+    unit : str — "THz", "meV", "cm-1", "rad/s" or "K" (temperature equivalent)
+    atoms : float — atoms per formula unit
+    partials : mapping of str to array_like, optional — partial densities (per species)
+        on the same grid, in the same normalisation as `density`
+    name : str, optional
+    low_t : "fit", "off" or float — low-temperature continuation (module docstring);
+        a float is a Debye temperature in K
+    low_t_cutoff : float, optional — the continuation's cut-off frequency in `unit`
+
+    Raises
+    ------
+    InputError
+        Non-finite values, negative densities beyond noise, no real modes; ``index``
+        names the offending row.
+    """
+
+    __slots__ = (
+        "_kind",
+        "_frequency",
+        "_density",
+        "_partials",
+        "_unit",
+        "_atoms",
+        "_name",
+        "_low_t",
+        "_cutoff_k",
+        "_fit_theta",
+        "_raw_integral",
+        "_modeset",
+    )
+
+    def __init__(
+        self,
+        frequency,
+        density,
+        *,
+        unit: str = "THz",
+        atoms: float = 1,
+        partials: Mapping[str, object] | None = None,
+        name: str | None = None,
+        low_t: str | float = "fit",
+        low_t_cutoff: float | None = None,
+    ):
+        unit = check_unit(unit)
+        atoms = _check_atoms(atoms)
+        low_t = _check_low_t(low_t)
+        who = _label(name)
+        f = _vector("frequency", frequency)
+        g = _vector("density", density)
+        if g.shape != f.shape:
+            raise InputError(f"density has {g.size} values but frequency has {f.size}")
+        parts = {}
+        for key, values in (partials or {}).items():
+            p = _vector(f"partial density {key!r}", values)
+            if p.shape != f.shape:
+                raise InputError(f"partial density {key!r} has {p.size} values but frequency has {f.size}")
+            parts[str(key)] = p
+        if f.size < 2:
+            raise InputError(f"a sampled spectrum needs at least 2 points, got {f.size}")
+
+        order = np.argsort(f, kind="stable")
+        if np.any(np.diff(f) < 0):
+            warnings.warn(f"{who}: frequencies were not in increasing order; sorted", SpectrumWarning, stacklevel=2)
+        f, g = f[order], g[order]
+        parts = {k: v[order] for k, v in parts.items()}
+        g = _clip_noise("density", g, who, order)
+        parts = {k: _clip_noise(f"partial density {k!r}", v, who, order) for k, v in parts.items()}
+
+        f, g, parts = _merge_duplicates(f, g, parts, who)
+        f, g, parts = _drop_imaginary(f, g, parts, who, order)
+        if not np.any(g > 0):
+            raise InputError("density is zero everywhere: no modes")
+
+        theta = f * kelvin_per(unit)
+        ms, scale, cutoff_k, fit_theta = _sampled_modeset(theta, g, atoms, low_t, low_t_cutoff, unit, who)
+        self._set(
+            kind="sampled",
+            frequency=f,
+            density=g * scale,
+            partials={k: v * scale for k, v in parts.items()},
+            unit=unit,
+            atoms=atoms,
+            name=name,
+            low_t=low_t,
+            cutoff_k=cutoff_k,
+            fit_theta=fit_theta,
+            raw_integral=float(np.trapezoid(g, f)),
+            modeset=ms,
+        )
+
+    # --- construction helpers --------------------------------------------------------
+    def _set(self, **kw) -> None:
+        for key, value in kw.items():
+            if isinstance(value, np.ndarray):
+                value = value.copy()
+                value.flags.writeable = False
+            elif isinstance(value, dict):
+                value = {k: _readonly(v) for k, v in value.items()}
+            object.__setattr__(self, "_" + key, value)
+
+    def __setattr__(self, key, value):
+        raise AttributeError("Spectrum is immutable; use .to(), .with_low_t() or build a new one")
+
+    @classmethod
+    def _from_parts(cls, **kw) -> "Spectrum":
+        obj = cls.__new__(cls)
+        obj._set(**kw)
+        return obj
+
+    def _parts(self) -> dict:
+        return {key[1:]: object.__getattribute__(self, key) for key in self.__slots__}
+
+    @classmethod
+    def from_modes(
+        cls,
+        frequencies,
+        weights=None,
+        *,
+        unit: str = "THz",
+        atoms: float = 1,
+        partials: Mapping[str, object] | None = None,
+        name: str | None = None,
+        low_t: str | float = "fit",
+        low_t_cutoff: float | None = None,
+        bins: int | None = None,
+    ) -> "Spectrum":
+        """A spectrum from individual mode frequencies, e.g. every mode of a q-mesh.
+
+        The modes themselves drive the thermodynamics (no binning error); a histogram
+        with `bins` bins is kept for display.
+
+        Parameters
+        ----------
+        frequencies : array_like — mode frequencies in `unit`; negative ones are
+            imaginary modes, excluded with a warning
+        weights : array_like, optional — weight of each mode (e.g. q-point weights)
+        unit, atoms, name, low_t, low_t_cutoff : as for :class:`Spectrum`
+        partials : mapping of str to array_like, optional — per-mode weight fractions
+            of each species (e.g. eigenvector weights), summing to 1 per mode
+        bins : int, optional — histogram bins for display (default from the mode count)
+        """
+        unit = check_unit(unit)
+        atoms = _check_atoms(atoms)
+        low_t = _check_low_t(low_t)
+        who = _label(name)
+        f = _vector("frequencies", frequencies)
+        w = np.ones_like(f) if weights is None else _vector("weights", weights)
+        if w.shape != f.shape:
+            raise InputError(f"weights has {w.size} values but frequencies has {f.size}")
+        neg_w = np.flatnonzero(w < 0)
+        if neg_w.size:
+            raise InputError(f"weight {w[neg_w[0]]!r} is negative", index=int(neg_w[0]))
+        parts = {}
+        for key, values in (partials or {}).items():
+            p = _vector(f"partial weights {key!r}", values)
+            if p.shape != f.shape:
+                raise InputError(f"partial weights {key!r} has {p.size} values but frequencies has {f.size}")
+            parts[str(key)] = p
+        if f.size == 0 or not np.any(w > 0):
+            raise InputError("no modes given")
+        imag = f < 0
+        if imag.all():
+            raise InputError("all modes are imaginary (negative frequencies): no real modes")
+        if imag.any():
+            frac = float(w[imag].sum() / w.sum())
+            warnings.warn(
+                f"{who}: {int(imag.sum())} imaginary mode(s) (negative frequencies), {frac:.3%} of the "
+                "modes by weight, excluded",
+                SpectrumWarning,
+                stacklevel=2,
+            )
+            f, w = f[~imag], w[~imag]
+            parts = {k: v[~imag] for k, v in parts.items()}
+        theta = f * kelvin_per(unit)
+        total_w = float(w.sum())
+        scale = 3.0 * atoms / total_w
+        ms, cutoff_k, fit_theta = _modes_modeset(theta, w * scale, atoms, low_t, low_t_cutoff, unit, who)
+
+        nbins = bins or int(np.clip(2 * math.sqrt(f.size), 50, 2000))
+        top = float(f.max()) if f.max() > 0 else 1.0
+        width = top / nbins
+        idx = np.minimum((f / width).astype(np.int64), nbins - 1)
+        hist = np.bincount(idx, weights=w * scale, minlength=nbins) / width
+        centres = (np.arange(nbins) + 0.5) * width
+        phist = {k: np.bincount(idx, weights=w * scale * v, minlength=nbins) / width for k, v in parts.items()}
+        return cls._from_parts(
+            kind="modes",
+            frequency=centres,
+            density=hist,
+            partials=phist,
+            unit=unit,
+            atoms=atoms,
+            name=name,
+            low_t=low_t,
+            cutoff_k=cutoff_k,
+            fit_theta=fit_theta,
+            raw_integral=total_w,
+            modeset=ms,
+        )
+
+    # --- properties -----------------------------------------------------------------
+    @property
+    def frequency(self) -> np.ndarray:
+        """Frequency grid in :attr:`unit` (read-only)."""
+        return self._frequency
+
+    @property
+    def density(self) -> np.ndarray:
+        """g(ω) in modes per formula unit per :attr:`unit`, integrating to 3·atoms (read-only)."""
+        return self._density
+
+    @property
+    def partials(self) -> dict[str, np.ndarray]:
+        """Partial densities in the same normalisation as :attr:`density`."""
+        return dict(self._partials)
+
+    @property
+    def unit(self) -> str:
+        return self._unit
+
+    @property
+    def atoms(self) -> float:
+        """Atoms per formula unit."""
+        return self._atoms
+
+    @property
+    def modes(self) -> float:
+        """Vibrational modes per formula unit (3·atoms)."""
+        return 3.0 * self._atoms
+
+    @property
+    def name(self) -> str | None:
+        return self._name
+
+    @property
+    def raw_integral(self) -> float:
+        """Trapezoid integral of the density as given (before normalisation), in its units × :attr:`unit`;
+        for a spectrum from modes, the sum of the weights kept."""
+        return self._raw_integral
+
+    @property
+    def low_t(self) -> str | float:
+        """The low-temperature continuation: "fit", "off" or a Debye temperature in K."""
+        return self._low_t
+
+    @property
+    def low_t_cutoff(self) -> float:
+        """Cut-off frequency of the low-temperature continuation, in :attr:`unit` (0 when off)."""
+        return self._cutoff_k / kelvin_per(self._unit)
+
+    def modeset(self) -> ModeSet:
+        """The evaluation engine's view of this spectrum (used by :func:`modeheat.thermo`)."""
+        return self._modeset
+
+    # --- conversions ------------------------------------------------------------------
+    def to(self, unit: str) -> "Spectrum":
+        """The same spectrum on a grid in another frequency unit."""
+        unit = check_unit(unit)
+        r = kelvin_per(self._unit) / kelvin_per(unit)
+        parts = self._parts()
+        parts.update(
+            frequency=self._frequency * r,
+            density=self._density / r,
+            partials={k: v / r for k, v in self._partials.items()},
+            unit=unit,
+            raw_integral=self._raw_integral,
+        )
+        return Spectrum._from_parts(**parts)
+
+    def with_low_t(self, low_t: str | float = "fit", low_t_cutoff: float | None = None) -> "Spectrum":
+        """The same sampled data with another low-temperature continuation (sampled spectra only)."""
+        if self._kind != "sampled":
+            raise InputError("with_low_t needs sampled data; build again with Spectrum.from_modes")
+        return Spectrum(
+            self._frequency,
+            self._density,
+            unit=self._unit,
+            atoms=self._atoms,
+            partials=self._partials,
+            name=self._name,
+            low_t=low_t,
+            low_t_cutoff=low_t_cutoff,
+        )
+
+    # --- moments ----------------------------------------------------------------------
+    def moment_debye_temperature(self, n: float) -> float:
+        """Moment Debye temperature θ(n) in K.
+
+        θ(n) = [(n+3)/3 · ⟨θⁿ⟩]^(1/n) for n ≠ 0, θ(0) = exp(1/3 + ⟨ln θ⟩), and θ(−3) the
+        low-temperature limit from the ω² coefficient.  Every θ(n) equals θ_D for a Debye
+        spectrum.  θ(−3) is the T → 0 Debye temperature, θ(−2) governs the mean-square
+        displacement, θ(0) the high-T entropy and θ(2) the high-T heat capacity.
+
+        Parameters
+        ----------
+        n : float — order, n ≥ −3
+        """
+        if not n >= -3:
+            raise InputError(f"moment order must be ≥ −3, not {n!r}")
+        ms = self._modeset
+        if n == -3:
+            return self._fit_theta if self._low_t == "off" else ms.low_temperature_theta()
+        if n == 0:
+            return math.exp(1.0 / 3.0 + ms.moment(0))
+        return ((n + 3.0) / 3.0 * ms.moment(n)) ** (1.0 / n)
+
+    def reduced_density(self) -> ReducedDensity:
+        """g(ω)/ω² on the positive-frequency grid, with the Debye level 9·atoms/θ_D(0)³."""
+        f = self._frequency
+        pos = f > 0
+        theta0 = self.moment_debye_temperature(-3) / kelvin_per(self._unit)
+        level = 9.0 * self._atoms / theta0**3 if np.isfinite(theta0) and theta0 > 0 else math.nan
+        return ReducedDensity(f[pos].copy(), self._density[pos] / f[pos] ** 2, level, self._unit)
+
+    def __repr__(self) -> str:
+        name = f"{self._name!r}, " if self._name else ""
+        return (
+            f"Spectrum({name}{self._frequency.size} points, 0–{self._frequency.max():.4g} {self._unit}, "
+            f"atoms={self._atoms:g}, low_t={self._low_t!r})"
+        )
+
+
+def _readonly(a: np.ndarray) -> np.ndarray:
+    a = np.array(a, dtype=float)
+    a.flags.writeable = False
+    return a
+
+
+def _check_low_t(low_t):
+    if isinstance(low_t, str):
+        if low_t in ("fit", "off"):
+            return low_t
+        raise InputError(f"low_t must be 'fit', 'off' or a Debye temperature in K, not {low_t!r}")
+    try:
+        value = float(low_t)
+    except (TypeError, ValueError):
+        raise InputError(f"low_t must be 'fit', 'off' or a Debye temperature in K, not {low_t!r}") from None
+    if not (math.isfinite(value) and value > 0):
+        raise InputError(f"a Debye temperature for low_t must be positive, not {low_t!r}")
+    return value
+
+
+def _merge_duplicates(f, g, parts, who):
+    """Average densities given twice at the same frequency."""
+    dup = np.diff(f) == 0
+    if not dup.any():
+        return f, g, parts
+    uniq, inverse, counts = np.unique(f, return_inverse=True, return_counts=True)
+    warnings.warn(
+        f"{who}: {int(dup.sum())} duplicate frequency value(s); their densities were averaged",
+        SpectrumWarning,
+        stacklevel=3,
+    )
+
+    def avg(v):
+        return np.bincount(inverse, weights=v) / counts
+
+    return uniq, avg(g), {k: avg(v) for k, v in parts.items()}
+
+
+def _drop_imaginary(f, g, parts, who, order):
+    """Remove negative (imaginary) frequencies, saying which fraction of modes went."""
+    neg = f < 0
+    if not neg.any():
+        return f, g, parts
+    if np.all(f <= 0):
+        raise InputError("all frequencies are zero or negative (imaginary modes): no real modes")
+    total = np.trapezoid(g, f)
+    keep_from = int(np.argmax(~neg))
+    lost = np.trapezoid(g[: keep_from + 1], f[: keep_from + 1])
+    frac = lost / total if total > 0 else 1.0
+    warnings.warn(
+        f"{who}: imaginary modes (negative frequencies) excluded: {frac:.3%} of the modes",
+        SpectrumWarning,
+        stacklevel=3,
+    )
+    sl = slice(keep_from, None)
+    return f[sl], g[sl], {k: v[sl] for k, v in parts.items()}
+
+
+def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
+    """Nodes of a sampled density and its continuation.
+
+    Returns (ModeSet, scale from the given density to the normalised one, ω_c in K,
+    θ_D(0) of the fit in K).
+    """
+    ratio_form = theta[:-1] > 0
+    if low_t != "off":
+        # Below the first sample the density continues as ω² (g/ω² constant) down to 0.
+        if theta[0] > 0:
+            theta, g = np.concatenate(([0.0], theta)), np.concatenate(([0.0], g))
+        ratio_form = np.ones(theta.size - 1, dtype=bool)
+    positive = np.flatnonzero(g > 0)
+    if cutoff is None:
+        wc = float(theta[min(int(positive[0]) + 3, theta.size - 1)])
+    else:
+        wc = float(cutoff) * kelvin_per(unit)
+        if not (math.isfinite(wc) and 0 < wc < theta[-1]):
+            raise InputError(f"low_t_cutoff must lie inside the frequency grid, not {cutoff!r}")
+    nodes_all, w_all = _interval_nodes(theta, g, 0.0, ratio_form)
+    raw = float(w_all.sum())
+    below = float(w_all[nodes_all < wc].sum())
+    # n_c = 3·atoms·below/raw modes below ω_c ⇒ θ_D(0) = ω_c·(3·atoms/n_c)^(1/3)
+    fit_theta = wc * (raw / below) ** (1.0 / 3.0) if below > 0 else math.inf
+    if low_t == "off":
+        scale = 3.0 * atoms / raw
+        return ModeSet(nodes_all, w_all * scale, atoms=atoms), scale, 0.0, fit_theta
+    nodes, w = _interval_nodes(theta, g, wc, ratio_form)
+    if low_t == "fit":
+        if below <= 0:
+            warnings.warn(
+                f"{who}: no modes below the low-temperature cut-off {wc:.4g} K, so the ω² continuation "
+                "is empty and C_v falls faster than T³; pass low_t=θ_D to set one",
+                SpectrumWarning,
+                stacklevel=3,
+            )
+        scale = 3.0 * atoms / raw
+        n_c = below * scale
+    else:
+        n_c = 3.0 * atoms * (wc / low_t) ** 3
+        if n_c >= 3.0 * atoms:
+            raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
+        scale = (3.0 * atoms - n_c) / float(w.sum())
+    debye = ((wc, n_c, 3),) if n_c > 0 else ()
+    return ModeSet(nodes, w * scale, debye=debye, atoms=atoms), scale, wc, fit_theta
+
+
+def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
+    """ModeSet of individual (normalised) modes with the continuation; returns (ModeSet, ω_c, θ fit)."""
+    n = theta.size
+    fit_theta = math.inf
+    if n >= _MIN_MODES_FOR_FIT:
+        k = max(_FIT_MODES, math.ceil(_FIT_FRACTION * n))
+        wc = float(np.partition(theta, k - 1)[k - 1])
+    else:
+        positive = theta[theta > 0]
+        wc = float(positive.min()) if positive.size else 0.0
+    if cutoff is not None:
+        wc = float(cutoff) * kelvin_per(unit)
+        if not (math.isfinite(wc) and wc > 0):
+            raise InputError(f"low_t_cutoff must be a positive frequency, not {cutoff!r}")
+    low = theta <= wc
+    n_c = float(w[low].sum())
+    theta_c = 0.0
+    if n_c > 0 and wc > 0:
+        # Modes of an ω² branch have θ³ uniform on [0, θ_c³]: θ_c³ = 2⟨θ³⟩ uses all of them.
+        theta_c = (2.0 * float(np.dot(w[low], theta[low] ** 3)) / n_c) ** (1.0 / 3.0)
+        if theta_c > 0:
+            fit_theta = theta_c * (3.0 * atoms / n_c) ** (1.0 / 3.0)
+    few = low_t == "fit" and n < _MIN_MODES_FOR_FIT and cutoff is None
+    if few:
+        warnings.warn(
+            f"{who}: only {n} modes, too few to fit a low-temperature ω² continuation; none used "
+            "(pass low_t=θ_D to set one)",
+            SpectrumWarning,
+            stacklevel=3,
+        )
+    if low_t == "off" or few or wc == 0.0:
+        zero = theta <= 0
+        if zero.any():
+            warnings.warn(
+                f"{who}: {int(zero.sum())} zero-frequency mode(s) dropped (infinite entropy without a "
+                "low-temperature continuation)",
+                SpectrumWarning,
+                stacklevel=3,
+            )
+        keep = ~zero
+        return ModeSet(theta[keep], w[keep] * (3.0 * atoms / w[keep].sum()), atoms=atoms), 0.0, fit_theta
+    rest = w[~low]
+    if low_t == "fit":
+        debye = ((theta_c, n_c, 3),) if theta_c > 0 else ()
+        return ModeSet(theta[~low], rest, debye=debye, atoms=atoms), wc, fit_theta
+    n_c = 3.0 * atoms * (wc / low_t) ** 3
+    if n_c >= 3.0 * atoms or rest.sum() <= 0:
+        raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
+    rest = rest * ((3.0 * atoms - n_c) / rest.sum())
+    return ModeSet(theta[~low], rest, debye=((wc, n_c, 3),), atoms=atoms), wc, fit_theta
