@@ -29,9 +29,9 @@ from . import special
 __all__ = ["ModeSet", "Extra"]
 
 DELTA = 1.0 / 256.0  # ln-grid step for θ and T
-SPREAD = 4  # points per node on the ln θ grid
+SPREAD = 6  # points per node on the ln θ grid
 GATHER = 8  # points per temperature on the ln T grid
-FROZEN = 15.0  # θ_min/T above which the node sum is done directly
+FROZEN = 12.0  # θ_min/T above which the node sum is done directly
 DIRECT_LIMIT = 40_000  # nodes × temperatures below which the direct sum is cheaper
 _CHUNK = 2_000_000  # elements per block in the direct sum
 

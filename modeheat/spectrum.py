@@ -250,6 +250,7 @@ class Spectrum:
 
         theta = f * kelvin_per(unit)
         ms, scale, cutoff_k, fit_theta = _sampled_modeset(theta, g, atoms, low_t, low_t_cutoff, unit, who)
+        scale *= kelvin_per(unit)  # the engine integrates over θ in K, the density is per `unit`
         self._set(
             kind="sampled",
             frequency=f,
