@@ -14,8 +14,8 @@ further column a density of states on that frequency grid.
   ``;`` an empty field is an error.
 * **Numbers** use a decimal point: ``12``, ``-0.5``, ``.25``, ``1.5e-3``.  ``nan`` and
   ``inf`` are read but rejected as non-finite values.  Decimal commas (``1,5``) are
-  not supported and give an error that says so: with ``;`` separators the field is
-  ambiguous only to a reader, and with ``,`` separators it cannot be told apart.
+  not supported, since a comma also separates fields: a file written with them (with
+  ``;`` or tab separators) gives an error that says so rather than being misread.
 * **Header.** The first non-comment row is a header when its first field is not a
   number.  Without such a row, the last comment line *directly* above the first data
   row (no blank line between) is read as the header when, after its ``#``, it splits
@@ -38,6 +38,10 @@ further column a density of states on that frequency grid.
 Negative frequencies are imaginary modes; the spectrum excludes them with a warning
 (an error when every frequency is ≤ 0).  Unsorted or repeated frequencies and tiny
 negative densities are repaired with a warning; see :class:`~modeheat.spectrum.Spectrum`.
+Anything else that does not fit — a missing, binary, UTF-16 or otherwise non-UTF-8
+file, no data rows, a row of the wrong length, text where a number belongs, a repeated
+column name, an unknown unit — is an :class:`~modeheat.errors.InputError` whose message
+names the file and, where one applies, the 1-based line.
 
 An example::
 
@@ -61,7 +65,6 @@ from __future__ import annotations
 import os
 import re
 import secrets
-import warnings
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -76,8 +79,8 @@ from .units import FREQUENCY_UNITS, check_unit
 
 __all__ = ["read_spectrum", "write_table"]
 
-_NUMBER = re.compile(r"[+-]?(?:(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?|nan|inf|infinity)", re.IGNORECASE)
-_DECIMAL_COMMA = re.compile(r"[+-]?\d*,\d+(?:[eE][+-]?\d+)?")
+_NUMBER = re.compile(r"[+-]?(?:(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?|nan|inf|infinity)", re.IGNORECASE | re.ASCII)
+_DECIMAL_COMMA = re.compile(r"[+-]?\d*,\d+(?:[eE][+-]?\d+)?", re.ASCII)
 _NAME_UNIT = re.compile(r"(?P<name>.*?)\s*(?:\((?P<paren>[^()]*)\)|\[(?P<bracket>[^\[\]]*)\])")
 
 
@@ -238,7 +241,7 @@ def _parse(text: str, path) -> _Table:
                 path=path,
                 line=number,
             )
-        rows.append([_number(field, k, header, path, number) for k, field in enumerate(fields)])
+        rows.append(_row(content, fields, header, path, number))
         lines.append(number)
         comment_above = None
     if not rows:
@@ -331,6 +334,16 @@ def _header(fields: list[str], number: int, path) -> _Header:
         names.append(bare)
         units.append(unit)
     return _Header(names, units, fields, number)
+
+
+def _row(content: str, fields: list[str], header: _Header | None, path, number: int) -> list[float]:
+    # On ASCII without "_", float() accepts exactly the numbers _NUMBER does, and faster.
+    if content.isascii() and "_" not in content:
+        try:
+            return [float(field) for field in fields]
+        except ValueError:
+            pass
+    return [_number(field, k, header, path, number) for k, field in enumerate(fields)]
 
 
 def _number(field: str, k: int, header: _Header | None, path, number: int) -> float:
