@@ -4,4 +4,7 @@ from .cli import main
 
 __all__: list[str] = []
 
-raise SystemExit(main())
+# The guard matters: worker processes started by "spawn" or "forkserver" import this
+# module again, and must not run the command a second time.
+if __name__ == "__main__":
+    raise SystemExit(main())
