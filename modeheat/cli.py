@@ -133,6 +133,33 @@ def _columns_arg(text: str) -> list[str | int]:
     return [int(item) if item.isdigit() else item for item in items]
 
 
+_TABLE_DESCRIPTION = """\
+Read spectrum files and print, at each temperature, C_v and S in J/(mol K),
+U and F in J/mol (zero-point energy included) and the effective Debye
+temperature theta_D in K.  Several files make one table with a 'source'
+column first, computed in parallel."""
+
+_TABLE_EPILOG = f"""\
+spectrum files:
+  Text columns: the frequency, then one or more densities of states, separated
+  by blanks, tabs, commas or semicolons; numbers use a decimal point.  Lines
+  starting with # are comments.  An optional header row names the columns and
+  may give the frequency unit, e.g.  frequency (THz), total, Ga, N
+  A column named 'total' is the total density; otherwise the density columns
+  are summed and each is a partial.
+
+output:
+  The table goes to standard output.  Warnings, the basis and the caution go
+  to standard error, and so does a progress line for {_PROGRESS_FROM} or more files
+  when standard error is a terminal.  Exit status: 0 success, 1 bad input
+  (one error line per failing file), 2 bad usage.
+
+examples:
+  modeheat table spectrum.txt --unit THz --atoms 2
+  modeheat table spectrum.txt --temperatures 1:300:1 -o table.csv
+  modeheat table a.txt b.txt c.txt --per atom --jobs 3"""
+
+
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser of the ``modeheat`` command."""
     parser = argparse.ArgumentParser(
@@ -146,17 +173,8 @@ def build_parser() -> argparse.ArgumentParser:
     table = commands.add_parser(
         "table",
         help="print the thermodynamic table of spectrum files",
-        description="Read spectrum files and print C_v and S in J/(mol K), U and F in J/mol "
-        "(zero-point energy included) and the effective Debye temperature theta_D in K at "
-        "each temperature.  Several files make one table with a 'source' column, computed "
-        "in parallel.",
-        epilog="Spectrum files are text columns: the frequency, then one or more densities of "
-        "states, separated by spaces, tabs, commas or semicolons (numbers with a decimal point). "
-        "Lines starting with # are comments.  An optional header row names the columns and may "
-        "give the frequency unit, e.g. 'frequency (THz), total, Ga, N'.  A column named 'total' "
-        "is the total density; otherwise the density columns are summed.  "
-        "The table goes to standard output; warnings and the caution go to standard error, and "
-        f"for {_PROGRESS_FROM} or more files a progress line too when standard error is a terminal.",
+        description=_TABLE_DESCRIPTION,
+        epilog=_TABLE_EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     table.add_argument("files", nargs="+", metavar="FILE", help="spectrum file(s)")
