@@ -136,8 +136,8 @@ def _columns_arg(text: str) -> list[str | int]:
 _TABLE_DESCRIPTION = """\
 Read spectrum files and print, at each temperature, C_v and S in J/(mol K),
 U and F in J/mol (zero-point energy included) and the effective Debye
-temperature theta_D in K.  Several files make one table with a 'source'
-column first, computed in parallel."""
+temperature theta_D in K.  Several files make one table, computed in
+parallel, whose first column 'source' holds each file as it was named."""
 
 _TABLE_EPILOG = f"""\
 spectrum files:
@@ -320,7 +320,11 @@ def _table(args: argparse.Namespace) -> int:
 
 
 def _check_output(output: str, files: list[str], overwrite: bool) -> None:
-    """Refuse early an output that would replace an input or, without --overwrite, any file."""
+    """Refuse before any work an output that cannot be written, would replace an input
+    or, without --overwrite, would replace any file."""
+    folder = os.path.dirname(output) or "."
+    if not os.path.isdir(folder):
+        raise InputError(f"the folder {folder!r} does not exist", path=output)
     if not os.path.exists(output):
         return
     for path in files:

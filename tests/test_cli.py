@@ -225,6 +225,15 @@ def test_refuses_to_overwrite_unless_asked(tmp_path, capsys):
     assert out.read_text(encoding="utf-8").startswith("# modeheat thermodynamic table\n")
 
 
+def test_missing_output_folder_is_refused_before_any_work(tmp_path, capsys, monkeypatch):
+    monkeypatch.setattr(cli, "_compute_all", None)  # would fail if reached
+    out = tmp_path / "nowhere" / "t.csv"
+    assert main(["table", str(GOOD), "-o", str(out)]) == 1
+    assert capsys.readouterr().err.splitlines() == [
+        f"modeheat: error: {out}: the folder {str(out.parent)!r} does not exist"
+    ]
+
+
 def test_never_overwrites_an_input_file(tmp_path, capsys):
     spectrum = tmp_path / "spectrum.csv"
     original = GOOD.read_text(encoding="utf-8")
