@@ -1,8 +1,9 @@
 """The evaluation engine behind every thermodynamic quantity.
 
 Any source (a sampled spectrum, a list of modes, a model mixture) reduces to a
-:class:`ModeSet`: Einstein-like nodes (θ_j, w_j), closed-form Debye branches and
-non-vibrational extras (electronic, two-level terms).  Its heat capacity, entropy,
+:class:`ModeSet`: Einstein-like nodes (θ_j, w_j), branches that evaluate themselves
+(closed-form Debye branches, quadratures of model continua) and non-vibrational
+extras (electronic, two-level terms).  Its heat capacity, entropy,
 energy and free energy are sums over nodes of a kernel that depends on θ/T alone.
 
 On logarithmic grids u = ln θ and v = ln T that kernel depends only on u − v, so the
@@ -26,7 +27,7 @@ from scipy import fft as _fft
 
 from . import special
 
-__all__ = ["ModeSet", "Extra"]
+__all__ = ["ModeSet", "Branch", "DebyeBranch", "Extra"]
 
 DELTA = 1.0 / 256.0  # ln-grid step for θ and T
 SPREAD = 6  # points per node on the ln θ grid
@@ -71,6 +72,58 @@ _SPREAD_OFFSETS = np.arange(SPREAD, dtype=float) - (SPREAD // 2 - 1)
 _GATHER_OFFSETS = np.arange(GATHER, dtype=float) - (GATHER // 2 - 1)
 
 
+class Branch(Protocol):
+    """A vibrational branch evaluated in closed form or by its own quadrature."""
+
+    modes: float
+    theta_max: float
+
+    def terms(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """C/R, U_th/(RT), F_th/(RT) per formula unit at T > 0."""
+        ...
+
+    def zero_point(self) -> float:
+        """U_0/R in K."""
+        ...
+
+    def moment_sum(self, n: float) -> float:
+        """Σ modes·⟨θⁿ⟩ (n = 0: Σ modes·⟨ln θ⟩)."""
+        ...
+
+    def low_t(self) -> tuple[int, float] | None:
+        """(dim, modes/θ_eff^dim) of the branch's low-frequency power law, None if gapped."""
+        ...
+
+
+@dataclass(frozen=True)
+class DebyeBranch:
+    """g ∝ ω^(dim−1) up to θ (K), carrying `modes` modes."""
+
+    theta: float
+    modes: float
+    dim: int = 3
+
+    @property
+    def theta_max(self) -> float:
+        return self.theta
+
+    def terms(self, T):
+        cv, e, f = special.debye_terms(self.theta / T, self.dim)
+        return self.modes * cv, self.modes * e, self.modes * f
+
+    def zero_point(self) -> float:
+        return 0.5 * self.modes * self.theta * self.dim / (self.dim + 1)
+
+    def moment_sum(self, n: float) -> float:
+        d = self.dim
+        if n == 0:
+            return self.modes * (math.log(self.theta) - 1.0 / d)
+        return self.modes * d / (d + n) * self.theta**n
+
+    def low_t(self):
+        return self.dim, self.modes / self.theta**self.dim
+
+
 @dataclass(frozen=True, eq=False)
 class ModeSet:
     """Everything the engine needs to know about a source, per formula unit.
@@ -79,14 +132,14 @@ class ModeSet:
     ----------
     theta : ndarray — node temperature equivalents in K (> 0)
     weight : ndarray — modes carried by each node (≥ 0)
-    debye : tuple of (theta_K, modes, dim) — closed-form Debye branches
+    branches : tuple of Branch — vibrational branches with their own evaluation
     extras : tuple of Extra — non-vibrational terms
     atoms : float — atoms per formula unit
     """
 
     theta: np.ndarray
     weight: np.ndarray
-    debye: tuple[tuple[float, float, int], ...] = ()
+    branches: tuple = ()
     extras: tuple = ()
     atoms: float = 1.0
     _cache: dict = field(default_factory=dict, repr=False, compare=False)
@@ -95,37 +148,44 @@ class ModeSet:
     @property
     def modes(self) -> float:
         """Vibrational modes per formula unit."""
-        return float(np.sum(self.weight)) + sum(m for _, m, _ in self.debye)
+        return float(np.sum(self.weight)) + sum(b.modes for b in self.branches)
+
+    @property
+    def theta_max(self) -> float:
+        """Highest temperature equivalent of any mode, K."""
+        top = [float(self.theta.max())] if self.theta.size else []
+        return max(top + [b.theta_max for b in self.branches], default=0.0)
 
     def zero_point(self) -> float:
         """Zero-point energy U_0/R in K per formula unit."""
-        nodes = 0.5 * float(np.dot(self.weight, self.theta))
-        branches = sum(0.5 * m * th * d / (d + 1) for th, m, d in self.debye)
-        return nodes + branches
+        if "zero_point" not in self._cache:
+            nodes = 0.5 * float(np.dot(self.weight, self.theta))
+            self._cache["zero_point"] = nodes + sum(b.zero_point() for b in self.branches)
+        return self._cache["zero_point"]
 
     def moment(self, n: float) -> float:
-        """Mean of θⁿ over all modes (n > −dim of every Debye branch), K**n; n = 0 gives ⟨ln θ⟩."""
-        total = self.modes
+        """Mean of θⁿ over all modes, K**n; n = 0 gives ⟨ln θ⟩."""
         if n == 0:
             nodes = float(np.dot(self.weight, np.log(self.theta)))
-            branches = sum(m * (math.log(th) - 1.0 / d) for th, m, d in self.debye)
         else:
             nodes = float(np.dot(self.weight, self.theta**n))
-            branches = sum(m * d / (d + n) * th**n for th, m, d in self.debye)
-        return (nodes + branches) / total
+        return (nodes + sum(b.moment_sum(n) for b in self.branches)) / self.modes
 
     def low_temperature_theta(self) -> float:
         """Limit of the effective Debye temperature as T → 0, in K.
 
-        From the ω² branches: (3·atoms / Σ modes·θ⁻³)^(1/3).  Lower-dimensional branches
-        make C fall slower than T³ (limit 0); no branch at all, faster (limit ∞).
+        From the ω² branches: (3·atoms / Σ modes·θ⁻³)^(1/3), scaled to the mode count.
+        Lower-dimensional branches make C fall slower than T³ (limit 0); without any
+        low-frequency branch it falls faster (limit ∞).
         """
-        if any(d < 3 and m > 0 for _, m, d in self.debye):
+        laws = [b.low_t() for b in self.branches]
+        laws = [law for law in laws if law is not None and law[1] > 0]
+        if any(d < 3 for d, _ in laws):
             return 0.0
-        s = sum(m / th**3 for th, m, d in self.debye if d == 3)
+        s = sum(a for _, a in laws)
         if s <= 0:
             return math.inf
-        return (3.0 * self.atoms / s) ** (1.0 / 3.0)
+        return (self.modes / s) ** (1.0 / 3.0)
 
     # --- evaluation ------------------------------------------------------------
     def evaluate(self, T: np.ndarray) -> dict[str, np.ndarray]:
@@ -144,9 +204,9 @@ class ModeSet:
         Th = T[hot]
         if Th.size:
             c1, e1, f1 = self._nodes(Th)
-            for th, m, d in self.debye:
-                dc, de, df = special.debye_terms(th / Th, d)
-                c1, e1, f1 = c1 + m * dc, e1 + m * de, f1 + m * df
+            for branch in self.branches:
+                dc, de, df = branch.terms(Th)
+                c1, e1, f1 = c1 + dc, e1 + de, f1 + df
             cv[hot], e[hot], f[hot] = c1, e1, f1
             s[hot] = e1 - f1
         u0 = self.zero_point()

@@ -31,7 +31,7 @@ from typing import Mapping
 import numpy as np
 from scipy import constants as _c
 
-from ._engine import ModeSet
+from ._engine import DebyeBranch, ModeSet
 from .errors import InputError, SpectrumWarning
 from .units import check_unit, kelvin_per
 
@@ -599,8 +599,8 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
         if n_c >= 3.0 * atoms:
             raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
         scale = (3.0 * atoms - n_c) / float(w.sum())
-    debye = ((wc, n_c, 3),) if n_c > 0 else ()
-    return ModeSet(nodes, w * scale, debye=debye, atoms=atoms), scale, wc, fit_theta
+    branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()
+    return ModeSet(nodes, w * scale, branches=branches, atoms=atoms), scale, wc, fit_theta
 
 
 def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
@@ -646,10 +646,10 @@ def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
         return ModeSet(theta[keep], w[keep] * (3.0 * atoms / w[keep].sum()), atoms=atoms), 0.0, fit_theta
     rest = w[~low]
     if low_t == "fit":
-        debye = ((theta_c, n_c, 3),) if theta_c > 0 else ()
-        return ModeSet(theta[~low], rest, debye=debye, atoms=atoms), wc, fit_theta
+        branches = (DebyeBranch(theta_c, n_c),) if theta_c > 0 else ()
+        return ModeSet(theta[~low], rest, branches=branches, atoms=atoms), wc, fit_theta
     n_c = 3.0 * atoms * (wc / low_t) ** 3
     if n_c >= 3.0 * atoms or rest.sum() <= 0:
         raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
     rest = rest * ((3.0 * atoms - n_c) / rest.sum())
-    return ModeSet(theta[~low], rest, debye=((wc, n_c, 3),), atoms=atoms), wc, fit_theta
+    return ModeSet(theta[~low], rest, branches=(DebyeBranch(wc, n_c),), atoms=atoms), wc, fit_theta

@@ -154,8 +154,7 @@ def _lattice_theta(ms: ModeSet, T: np.ndarray, cv_lattice: np.ndarray) -> np.nda
     theta[T == 0] = ms.low_temperature_theta()
     hot = T > 0
     # Far above every mode 1 − C/C_max is lost to rounding: use the Thirring series.
-    tmax = max([float(ms.theta.max()) if ms.theta.size else 0.0] + [th for th, _, _ in ms.debye])
-    classical = hot & (T > 20.0 * tmax)
+    classical = hot & (T > 20.0 * ms.theta_max)
     if np.any(classical):
         theta[classical] = _thirring_theta(ms, T[classical])
     rest = hot & ~classical

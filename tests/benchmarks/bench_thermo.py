@@ -39,8 +39,8 @@ def direct_table(spectrum, T):
     for i, t in enumerate(T):
         x = ms.theta / t
         out[i] = np.dot(ms.weight, x * x * np.exp(-x) / np.expm1(-x) ** 2)
-    for th, m, d in ms.debye:
-        out += m * debye_cv(th / T, d)
+    for branch in ms.branches:
+        out += branch.terms(T)[0]
     return R * out
 
 
