@@ -1,5 +1,6 @@
 """modeheat — from a phonon density of states to heat capacity, entropy, energy and θ_D(T)."""
 
+from .data import read_spectrum, write_table
 from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
 from .spectrum import ReducedDensity, Spectrum, debye_temperature_from_sound
 from .thermo import (
@@ -31,5 +32,7 @@ __all__ = [
     "heat_capacity",
     "internal_energy",
     "thermo",
+    "read_spectrum",
+    "write_table",
     "zero_point_energy",
 ]

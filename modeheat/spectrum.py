@@ -102,7 +102,7 @@ def _vector(name: str, values) -> np.ndarray:
         raise InputError(f"{name} must be one-dimensional, not of shape {a.shape}")
     bad = np.flatnonzero(~np.isfinite(a))
     if bad.size:
-        raise InputError(f"{name} is {a[bad[0]]!r}, not a finite number", index=int(bad[0]))
+        raise InputError(f"{name} is {float(a[bad[0]])!r}, not a finite number", index=int(bad[0]))
     return a
 
 
