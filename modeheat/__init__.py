@@ -2,6 +2,7 @@
 
 from .data import read_spectrum, write_table
 from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
+from .models import Band, Component, Debye, Einstein, Electronic, Mixture, ModeCountWarning, Schottky, SineChain, solid
 from .spectrum import ReducedDensity, Spectrum, debye_temperature_from_sound
 from .thermo import (
     CAUTION,
@@ -17,6 +18,16 @@ from .thermo import (
 __version__ = "0.1.0"
 
 __all__ = [
+    "Band",
+    "Component",
+    "Debye",
+    "Einstein",
+    "Electronic",
+    "Mixture",
+    "ModeCountWarning",
+    "Schottky",
+    "SineChain",
+    "solid",
     "CAUTION",
     "InputError",
     "ModeheatError",

@@ -376,6 +376,93 @@ class Spectrum:
             modeset=ms,
         )
 
+    @classmethod
+    def from_histogram(
+        cls,
+        edges,
+        counts,
+        *,
+        unit: str = "THz",
+        atoms: float = 1,
+        partials: Mapping[str, object] | None = None,
+        name: str | None = None,
+        low_t: str | float = "fit",
+        low_t_cutoff: float | None = None,
+    ) -> "Spectrum":
+        """A spectrum from mode counts in frequency bins (flat density inside each bin).
+
+        The count of every bin is kept exactly, which suits histograms of measured
+        spectra and model densities with integrable singularities.
+
+        Parameters
+        ----------
+        edges : array_like — n + 1 increasing bin edges in `unit`; bins below 0
+            (imaginary modes) are excluded with a warning
+        counts : array_like — n mode counts (any normalisation), ≥ 0
+        unit, atoms, name, low_t : as for :class:`Spectrum`
+        partials : mapping of str to array_like, optional — per-species counts per bin
+        low_t_cutoff : float, optional — in `unit`; default the upper edge of the third
+            bin above the first non-empty one
+        """
+        unit = check_unit(unit)
+        atoms = _check_atoms(atoms)
+        low_t = _check_low_t(low_t)
+        who = _label(name)
+        e = _vector("edges", edges)
+        c = _vector("counts", counts)
+        if e.size != c.size + 1 or c.size == 0:
+            raise InputError(f"a histogram needs n + 1 edges for n counts, got {e.size} edges and {c.size} counts")
+        step = np.flatnonzero(np.diff(e) <= 0)
+        if step.size:
+            raise InputError("bin edges must increase strictly", index=int(step[0]) + 1)
+        parts = {}
+        for key, values in (partials or {}).items():
+            p = _vector(f"partial counts {key!r}", values)
+            if p.shape != c.shape:
+                raise InputError(f"partial counts {key!r} has {p.size} values but counts has {c.size}")
+            parts[str(key)] = p
+        order = np.arange(c.size)
+        c = _clip_noise("counts", c, who, order)
+        parts = {k: _clip_noise(f"partial counts {k!r}", v, who, order) for k, v in parts.items()}
+        if e[-1] <= 0 or not np.any(c[e[1:] > 0] > 0):
+            raise InputError("no real modes: every non-empty bin lies at negative (imaginary) frequencies")
+        if e[0] < 0:
+            # keep the positive share of a bin that straddles 0
+            share = np.clip(e[1:], 0, None) - np.clip(e[:-1], 0, None)
+            frac_kept = share / np.diff(e)
+            lost = float(np.sum(c * (1 - frac_kept)) / np.sum(c))
+            warnings.warn(
+                f"{who}: imaginary modes (negative frequencies) excluded: {lost:.3%} of the modes",
+                SpectrumWarning,
+                stacklevel=2,
+            )
+            keep = share > 0
+            c = (c * frac_kept)[keep]
+            parts = {k: (v * frac_kept)[keep] for k, v in parts.items()}
+            e = np.concatenate(([max(e[0], 0.0)], e[1:][keep]))
+            e[0] = max(e[0], 0.0)
+        if not np.any(c > 0):
+            raise InputError("counts are zero everywhere: no modes")
+        theta = e * kelvin_per(unit)
+        total = float(c.sum())
+        ms, cutoff_k, fit_theta = _histogram_modeset(theta, c * (3.0 * atoms / total), atoms, low_t, low_t_cutoff, unit)
+        width = np.diff(e)
+        scale = 3.0 * atoms / total
+        return cls._from_parts(
+            kind="histogram",
+            frequency=0.5 * (e[:-1] + e[1:]),
+            density=c * scale / width,
+            partials={k: v * scale / width for k, v in parts.items()},
+            unit=unit,
+            atoms=atoms,
+            name=name,
+            low_t=low_t,
+            cutoff_k=cutoff_k,
+            fit_theta=fit_theta,
+            raw_integral=total,
+            modeset=ms,
+        )
+
     # --- properties -----------------------------------------------------------------
     @property
     def frequency(self) -> np.ndarray:
@@ -448,7 +535,7 @@ class Spectrum:
     def with_low_t(self, low_t: str | float = "fit", low_t_cutoff: float | None = None) -> "Spectrum":
         """The same sampled data with another low-temperature continuation (sampled spectra only)."""
         if self._kind != "sampled":
-            raise InputError("with_low_t needs sampled data; build again with Spectrum.from_modes")
+            raise InputError(f"with_low_t needs sampled data; build this {self._kind} spectrum again instead")
         return Spectrum(
             self._frequency,
             self._density,
@@ -582,7 +669,16 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
     fit_theta = wc * (raw / below) ** (1.0 / 3.0) if below > 0 else math.inf
     if low_t == "off":
         scale = 3.0 * atoms / raw
-        return ModeSet(nodes_all, w_all * scale, atoms=atoms), scale, 0.0, fit_theta
+        if theta[0] > 0:
+            return ModeSet(nodes_all, w_all * scale, atoms=atoms), scale, 0.0, fit_theta
+        # The interval from ω = 0, linear in g, is exactly a flat (dim 1) plus a linear
+        # (dim 2) Debye branch; quadrature nodes would miss the ln ω of S and F there.
+        nodes, w = _interval_nodes(theta, g, theta[1], ratio_form)
+        w1, g0, g1 = theta[1], g[0], g[1]
+        branches = tuple(
+            DebyeBranch(w1, m * scale, d) for m, d in ((g0 * w1, 1), (0.5 * (g1 - g0) * w1, 2)) if m != 0
+        )
+        return ModeSet(nodes, w * scale, branches=branches, atoms=atoms), scale, 0.0, fit_theta
     nodes, w = _interval_nodes(theta, g, wc, ratio_form)
     if low_t == "fit":
         if below <= 0:
@@ -653,3 +749,45 @@ def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
         raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
     rest = rest * ((3.0 * atoms - n_c) / rest.sum())
     return ModeSet(theta[~low], rest, branches=(DebyeBranch(wc, n_c),), atoms=atoms), wc, fit_theta
+
+
+def _bin_nodes(edges: np.ndarray, counts: np.ndarray, lo: float):
+    """Gauss–Legendre nodes of flat bins above `lo` (parts below it left out)."""
+    a, b = np.maximum(edges[:-1], lo), edges[1:]
+    keep = b > a
+    dens = counts[keep] / np.diff(edges)[keep]
+    a, b = a[keep], b[keep]
+    t, w = _GAUSS
+    half = 0.5 * (b - a)
+    nodes = (0.5 * (a + b))[:, None] + half[:, None] * t[None, :]
+    return nodes.ravel(), (dens[:, None] * half[:, None] * w[None, :]).ravel()
+
+
+def _histogram_modeset(theta, counts, atoms, low_t, cutoff, unit):
+    """ModeSet of normalised bin counts with the continuation; returns (ModeSet, ω_c, θ fit)."""
+    filled = np.flatnonzero(counts > 0)
+    if cutoff is None:
+        wc = float(theta[min(int(filled[0]) + 3, theta.size - 1)])
+    else:
+        wc = float(cutoff) * kelvin_per(unit)
+        if not (math.isfinite(wc) and theta[0] < wc < theta[-1]):
+            raise InputError(f"low_t_cutoff must lie inside the histogram, not {cutoff!r}")
+    nodes_all, w_all = _bin_nodes(theta, counts, theta[0])
+    below = float(np.sum(counts * np.clip((wc - theta[:-1]) / np.diff(theta), 0, 1)))
+    fit_theta = wc * (3.0 * atoms / below) ** (1.0 / 3.0) if below > 0 else math.inf
+    if low_t == "off":
+        if theta[0] > 0 or counts[0] == 0:
+            return ModeSet(nodes_all, w_all, atoms=atoms), 0.0, fit_theta
+        # A flat bin from ω = 0 is exactly a one-dimensional Debye branch.
+        nodes, w = _bin_nodes(theta, counts, theta[1])
+        return ModeSet(nodes, w, branches=(DebyeBranch(theta[1], counts[0], 1),), atoms=atoms), 0.0, fit_theta
+    nodes, w = _bin_nodes(theta, counts, wc)
+    if low_t == "fit":
+        n_c = below
+    else:
+        n_c = 3.0 * atoms * (wc / low_t) ** 3
+        if n_c >= 3.0 * atoms:
+            raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
+        w = w * ((3.0 * atoms - n_c) / w.sum())
+    branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()
+    return ModeSet(nodes, w, branches=branches, atoms=atoms), wc, fit_theta
