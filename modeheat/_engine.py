@@ -187,6 +187,18 @@ class ModeSet:
             return math.inf
         return (self.modes / s) ** (1.0 / 3.0)
 
+    def moment_theta(self, n: float) -> float:
+        """Moment Debye temperature θ(n) in K (Barron, Berg & Morrison 1957).
+
+        θ(n) = [(n+3)/3 · ⟨θⁿ⟩]^(1/n) for n ≠ 0, θ(0) = exp(1/3 + ⟨ln θ⟩), θ(−3) the
+        T → 0 Debye temperature.
+        """
+        if n == -3:
+            return self.low_temperature_theta()
+        if n == 0:
+            return math.exp(1.0 / 3.0 + self.moment(0))
+        return ((n + 3.0) / 3.0 * self.moment(n)) ** (1.0 / n)
+
     # --- evaluation ------------------------------------------------------------
     def evaluate(self, T: np.ndarray) -> dict[str, np.ndarray]:
         """C/R, S/R, U/R [K], F/R [K] per formula unit, and the lattice part of C/R.

@@ -306,6 +306,10 @@ class Component:
         """The vibrational part rendered as a :class:`~modeheat.Spectrum` (see :meth:`Mixture.spectrum`)."""
         return Mixture((self,)).spectrum(**kw)
 
+    def moment_debye_temperature(self, n: float) -> float:
+        """Moment Debye temperature θ(n) in K (see :meth:`Mixture.moment_debye_temperature`)."""
+        return Mixture((self,)).moment_debye_temperature(n)
+
     def cumulative(self, theta: np.ndarray) -> np.ndarray:
         """Modes with temperature equivalent below θ (K)."""
         return np.zeros_like(np.asarray(theta, dtype=float))
@@ -649,6 +653,13 @@ class Mixture:
             extras=tuple(extras),
             atoms=atoms,
         )
+
+    def moment_debye_temperature(self, n: float) -> float:
+        """Moment Debye temperature θ(n) in K of the vibrational part (see
+        :meth:`modeheat.Spectrum.moment_debye_temperature`); θ(−3) is the T → 0 limit."""
+        if not n >= -3:
+            raise InputError(f"moment order must be ≥ −3, not {n!r}")
+        return self.modeset().moment_theta(n)
 
     def cumulative(self, theta) -> np.ndarray:
         """Vibrational modes per formula unit below θ (K)."""

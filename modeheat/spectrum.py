@@ -562,12 +562,9 @@ class Spectrum:
         """
         if not n >= -3:
             raise InputError(f"moment order must be ≥ −3, not {n!r}")
-        ms = self._modeset
-        if n == -3:
-            return self._fit_theta if self._low_t == "off" else ms.low_temperature_theta()
-        if n == 0:
-            return math.exp(1.0 / 3.0 + ms.moment(0))
-        return ((n + 3.0) / 3.0 * ms.moment(n)) ** (1.0 / n)
+        if n == -3 and self._low_t == "off":
+            return self._fit_theta
+        return self._modeset.moment_theta(n)
 
     def reduced_density(self) -> ReducedDensity:
         """g(ω)/ω² on the positive-frequency grid, with the Debye level 9·atoms/θ_D(0)³."""
