@@ -77,7 +77,7 @@ def _non_negative(kind: str, label: str, value) -> float:
     return v
 
 
-def _dim(kind: str, dim) -> int:
+def _dim(kind: str, label: str, dim) -> int:
     if dim not in (1, 2, 3):
         raise InputError(f"{kind}: dim must be 1, 2 or 3, not {dim!r}")
     return int(dim)
@@ -260,8 +260,11 @@ class Component:
 
     kind: ClassVar[str] = "component"
     _continuous: ClassVar[tuple[str, ...]] = ()
+    _checks: ClassVar[dict] = {}  # field → validator(kind, label, value) returning the clean value
 
     def __post_init__(self):
+        for label, check in self._checks.items():
+            object.__setattr__(self, label, check(self.kind, label, getattr(self, label)))
         if self.name is None:
             object.__setattr__(self, "name", self.kind)
         elif not isinstance(self.name, str) or not self.name or "." in self.name:
@@ -338,11 +341,7 @@ class Debye(Component):
     kind: ClassVar[str] = "debye"
     _continuous: ClassVar[tuple[str, ...]] = ("theta",)
 
-    def __post_init__(self):
-        object.__setattr__(self, "theta", _positive(self.kind, "theta", self.theta))
-        object.__setattr__(self, "modes", _non_negative(self.kind, "modes", self.modes))
-        object.__setattr__(self, "dim", _dim(self.kind, self.dim))
-        super().__post_init__()
+    _checks: ClassVar[dict] = {"theta": _positive, "modes": _non_negative, "dim": _dim}
 
     def _parts(self):
         return [], [], [DebyeBranch(self.theta, self.modes, self.dim)], []
@@ -376,11 +375,7 @@ class SineChain(Component):
     kind: ClassVar[str] = "sinechain"
     _continuous: ClassVar[tuple[str, ...]] = ("theta",)
 
-    def __post_init__(self):
-        object.__setattr__(self, "theta", _positive(self.kind, "theta", self.theta))
-        object.__setattr__(self, "modes", _non_negative(self.kind, "modes", self.modes))
-        object.__setattr__(self, "dim", _dim(self.kind, self.dim))
-        super().__post_init__()
+    _checks: ClassVar[dict] = {"theta": _positive, "modes": _non_negative, "dim": _dim}
 
     def _parts(self):
         return [], [], [_SineBranch(self.theta, self.modes, self.dim)], []
@@ -410,10 +405,7 @@ class Einstein(Component):
     kind: ClassVar[str] = "einstein"
     _continuous: ClassVar[tuple[str, ...]] = ("theta",)
 
-    def __post_init__(self):
-        object.__setattr__(self, "theta", _positive(self.kind, "theta", self.theta))
-        object.__setattr__(self, "modes", _non_negative(self.kind, "modes", self.modes))
-        super().__post_init__()
+    _checks: ClassVar[dict] = {"theta": _positive, "modes": _non_negative}
 
     def _parts(self):
         return [self.theta], [self.modes], [], []
@@ -445,13 +437,12 @@ class Band(Component):
     kind: ClassVar[str] = "band"
     _continuous: ClassVar[tuple[str, ...]] = ("theta_low", "theta_high")
 
+    _checks: ClassVar[dict] = {"theta_low": _non_negative, "theta_high": _positive, "modes": _non_negative}
+
     def __post_init__(self):
-        object.__setattr__(self, "theta_low", _non_negative(self.kind, "theta_low", self.theta_low))
-        object.__setattr__(self, "theta_high", _positive(self.kind, "theta_high", self.theta_high))
-        object.__setattr__(self, "modes", _non_negative(self.kind, "modes", self.modes))
+        super().__post_init__()
         if self.theta_high < self.theta_low:
             raise InputError(f"band: theta_high ({self.theta_high:g} K) is below theta_low ({self.theta_low:g} K)")
-        super().__post_init__()
 
     def _parts(self):
         if self.theta_high == self.theta_low:
@@ -487,9 +478,7 @@ class Electronic(Component):
     kind: ClassVar[str] = "electronic"
     _continuous: ClassVar[tuple[str, ...]] = ("gamma",)
 
-    def __post_init__(self):
-        object.__setattr__(self, "gamma", _non_negative(self.kind, "gamma", self.gamma))
-        super().__post_init__()
+    _checks: ClassVar[dict] = {"gamma": _non_negative}
 
     def _parts(self):
         return [], [], [], [_ElectronicTerm(self.gamma)]
@@ -516,11 +505,7 @@ class Schottky(Component):
     kind: ClassVar[str] = "schottky"
     _continuous: ClassVar[tuple[str, ...]] = ("delta", "n")
 
-    def __post_init__(self):
-        object.__setattr__(self, "delta", _positive(self.kind, "delta", self.delta))
-        object.__setattr__(self, "g_ratio", _positive(self.kind, "g_ratio", self.g_ratio))
-        object.__setattr__(self, "n", _non_negative(self.kind, "n", self.n))
-        super().__post_init__()
+    _checks: ClassVar[dict] = {"delta": _positive, "g_ratio": _positive, "n": _non_negative}
 
     def _parts(self):
         return [], [], [], [_SchottkyTerm(self.delta, self.g_ratio, self.n)]
