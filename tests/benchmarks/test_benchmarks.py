@@ -16,3 +16,13 @@ def test_thermo_benchmark_prints_ratios(capsys):
     out = capsys.readouterr().out
     print(out)
     assert len(ratios) == 3 and "ratio" in out
+
+
+def test_lattice_benchmark_prints_time_and_memory(capsys):
+    from bench_lattice import main
+
+    result = main()
+    out = capsys.readouterr().out
+    print(out)
+    # common practice: 3 modes per atom; speed and memory are reported, not asserted
+    assert abs(result["modes"] - 3.0) < 1e-9 and "peak memory" in out
