@@ -1,41 +1,147 @@
-"""The demonstration spectrum in demo_spectra/ is what its script writes, and is a sane DOS.
+"""The demonstration data in demo_spectra/ are what their script writes, and are sane.
 
-The compound there is invented: these checks are about the file, not about physics.
+The materials there are invented: these checks are about the files and their stated
+construction, not about any real material.
 """
 
 from __future__ import annotations
 
 import importlib.util
+import re
+import sys
 from pathlib import Path
 
 import numpy as np
+import pytest
+
+from modeheat import thermo
+from modeheat.data import read_spectrum
+from modeheat.units import R
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_spectra"
+DOS_FILES = {
+    "zorbium_lumide_dos.txt": ("THz", 2),
+    "zorbium_lumide_dos_meV.txt": ("meV", 2),
+    "zorbium_lumide_dos_cm-1.txt": ("cm-1", 2),
+    "quellium_dos.txt": ("THz", 1),
+}
+CP_FILES = {"zorbium_lumide_cp.txt": 2, "quellium_cp.txt": 1}
 
 
 def _script():
     spec = importlib.util.spec_from_file_location("make_demo", DEMO / "make_demo.py")
     module = importlib.util.module_from_spec(spec)
+    sys.modules[spec.name] = module  # dataclasses look their module up there
     spec.loader.exec_module(module)
     return module
 
 
-def test_committed_file_is_reproducible():
-    # reference: the committed file itself; rerun demo_spectra/make_demo.py if this fails
+def _split(text: str):
+    """Comment and header lines, and the numeric rows."""
+    lines = text.splitlines()
+    data = [i for i, line in enumerate(lines) if re.fullmatch(r"\s*[-+\d.][\s\d.eE+-]*", line)]
+    head = lines[: data[0]]
+    return head, np.array([[float(x) for x in lines[i].split()] for i in data])
+
+
+def _read(name: str):
+    head, rows = _split((DEMO / name).read_text(encoding="utf-8"))
+    return head, rows
+
+
+def test_committed_files_are_reproducible(tmp_path):
+    # reference: the committed files themselves; rerun demo_spectra/make_demo.py if this
+    # fails.  Headers must match exactly and numbers to their printed precision (the
+    # eigen-solver's last-bit rounding may differ between machines)
     make_demo = _script()
-    committed = (DEMO / make_demo.FILENAME).read_text(encoding="utf-8")
-    assert committed == make_demo.render()
+    assert make_demo.main(["make_demo.py", str(tmp_path)]) == 0
+    written = sorted(p.name for p in tmp_path.iterdir())
+    assert written == sorted(list(DOS_FILES) + list(CP_FILES))
+    for name in written:
+        committed = (DEMO / name).read_text(encoding="utf-8")
+        fresh = (tmp_path / name).read_text(encoding="utf-8")
+        if committed == fresh:
+            continue
+        head_c, rows_c = _split(committed)
+        head_f, rows_f = _split(fresh)
+        assert head_c == head_f, name
+        assert rows_c.shape == rows_f.shape, name
+        np.testing.assert_allclose(rows_c, rows_f, rtol=2e-6, atol=1e-12, err_msg=name)
 
 
-def test_demo_dos_counts_three_modes_per_atom():
+def test_every_file_says_it_is_invented():
+    # the project's rule: demo data say plainly they are invented, in every file
+    for name in [*DOS_FILES, *CP_FILES]:
+        head, _ = _read(name)
+        comments = " ".join(line for line in head if line.startswith("#"))
+        assert "INVENTED FOR DEMONSTRATION" in comments, name
+        assert "not a measurement of any real material" in comments, name
+    readme = (DEMO / "README.md").read_text(encoding="utf-8")
+    assert "invented for demonstration" in readme.lower()
+
+
+@pytest.mark.parametrize("name", sorted(DOS_FILES))
+def test_demo_dos_counts_three_modes_per_atom(name):
     # common practice: a DOS per formula unit integrates to 3 modes per atom; partials add up
-    text = (DEMO / _script().FILENAME).read_text(encoding="utf-8").splitlines()
-    header = [line for line in text if not line.startswith("#")][0]
-    assert header.split() == ["frequency", "(THz)", "total", "A", "B"]
-    assert any("INVENTED FOR DEMONSTRATION" in line for line in text if line.startswith("#"))
-    nu, total, a, b = np.loadtxt(text[text.index(header) + 1 :], unpack=True)
-    area = lambda g: 0.5 * np.sum((g[1:] + g[:-1]) * np.diff(nu))  # noqa: E731
-    assert abs(area(total) - 6.0) < 1e-6
-    assert abs(area(a) - 3.0) < 1e-6 and abs(area(b) - 3.0) < 1e-6
-    np.testing.assert_allclose(a + b, total, atol=1e-6)
-    assert np.all(np.diff(nu) > 0) and np.all(total >= 0)
+    unit, atoms = DOS_FILES[name]
+    head, rows = _read(name)
+    columns = head[-1].split()
+    partials = ["A", "B"] if atoms == 2 else []
+    assert columns == ["frequency", f"({unit})", "total", *partials]
+    nu, total = rows[:, 0], rows[:, 1]
+    area = lambda g: float(np.trapezoid(g, nu))  # noqa: E731
+    # 6 printed digits on density and frequency: the trapezoid sum agrees to ~1e-6
+    assert area(total) == pytest.approx(3.0 * atoms, rel=1e-5)
+    if partials:
+        assert area(rows[:, 2]) == pytest.approx(3.0, rel=1e-5)
+        assert area(rows[:, 3]) == pytest.approx(3.0, rel=1e-5)
+        np.testing.assert_allclose(rows[:, 2] + rows[:, 3], total, rtol=1e-5, atol=1e-6 * total.max())
+    assert np.all(np.diff(nu) > 0) and np.all(total >= 0) and nu[0] == 0.0 and total[-1] == 0.0
+
+
+def test_the_three_units_give_one_thermodynamics():
+    # scipy.constants/CODATA (through modeheat.units): the meV and cm⁻¹ files are the THz
+    # file in other units, so C_v and S agree to the files' printed precision
+    T = [5.0, 50.0, 300.0]
+    tables = [thermo(read_spectrum(DEMO / name, atoms=2), T) for name in list(DOS_FILES)[:3]]
+    for other in tables[1:]:
+        np.testing.assert_allclose(other["Cv"], tables[0]["Cv"], rtol=1e-5)
+        np.testing.assert_allclose(other["S"], tables[0]["S"], rtol=1e-5)
+
+
+def _stated(header: str, pattern: str) -> float:
+    match = re.search(pattern, header)
+    assert match, pattern
+    return float(match.group(1))
+
+
+@pytest.mark.parametrize("name", sorted(CP_FILES))
+def test_synthetic_calorimetry_follows_its_stated_model(name):
+    # reference: the construction the file's own header states (invented data), rebuilt
+    # from the header and the committed DOS file alone: the normalised residuals
+    # (C − C_p,true)/σ are standard normal and σ is the stated noise model
+    atoms = CP_FILES[name]
+    head, rows = _read(name)
+    assert head[-1].split() == ["T", "(K)", "C", "(J/(mol", "K))", "sigma", "(J/(mol", "K))"]
+    T, C, sigma = rows.T
+    assert T[0] == 2.0 and T[-1] == 300.0 and np.all(np.diff(T) > 0)
+    assert np.count_nonzero(T < 20) > np.count_nonzero(T > 200)  # denser at low T
+    header = " ".join(line.lstrip("#").strip() for line in head)
+    cutoff = _stated(header, r"continued below ([0-9.]+) THz")
+    theta = _stated(header, r"theta_D\(0\) = ([0-9.]+) K")
+    gamma = _stated(header, r"gamma = ([0-9.e+-]+) J")
+    a = _stated(header, r"A = ([0-9.e+-]+) mol/J")
+    relative = _stated(header, r"sigma = ([0-9.]+)\*C_p")
+    floor = _stated(header, r"\*C_p \+ ([0-9.e+-]+) J")
+    dos = DEMO / name.replace("_cp.txt", "_dos.txt")
+    spectrum = read_spectrum(dos, atoms=atoms, low_t=theta, low_t_cutoff=cutoff)
+    cv = thermo(spectrum, T)["Cv"].to_numpy() + gamma * T
+    cp = 2 * cv / (1 + np.sqrt(1 - 4 * a * T * cv))  # the stated root of C_p − C_v = A·C_p²·T
+    assert np.all(cp - cv == pytest.approx(a * cp**2 * T, rel=1e-9))
+    # header values are rounded (θ to 0.01 K, the cut-off to 1e-4 THz): 1e-4 of σ's size
+    np.testing.assert_allclose(sigma, relative * cp + floor, rtol=1e-4)
+    z = (C - cp) / sigma
+    # 100 standard normals: |mean| < 0.4 and 0.6 < std < 1.4 are beyond 4σ of chance
+    assert abs(z.mean()) < 0.4 and 0.6 < z.std() < 1.4
+    # common practice: near room temperature C_p is a few % above 3R per mole of atoms
+    assert 0.9 * 3 * atoms * R < cp[-1] < 1.1 * 3 * atoms * R
