@@ -1363,7 +1363,8 @@ def debye_temperature(model: Model3D) -> float:
 
     θ_D(0) = hν_D/k with 9·atoms/ν_D³ = :func:`debye_coefficient`: the Debye spectrum
     of 3·atoms modes with the model's own low-frequency density (as
-    ``Spectrum.moment_debye_temperature(-3)`` defines it).
+    ``Spectrum.moment_debye_temperature(-3)`` defines it); 0 when a shear constant
+    vanishes (the coefficient is then infinite).
     """
     coeff = debye_coefficient(model, unit="K")
     if not math.isfinite(coeff):
