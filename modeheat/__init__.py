@@ -1,5 +1,6 @@
 """modeheat — from a phonon density of states to heat capacity, entropy, energy and θ_D(T)."""
 
+from . import lattice
 from .data import read_spectrum, write_table
 from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
 from .models import Band, Component, Debye, Einstein, Electronic, Mixture, ModeCountWarning, Schottky, SineChain, solid
@@ -28,6 +29,7 @@ __all__ = [
     "Schottky",
     "SineChain",
     "solid",
+    "lattice",
     "CAUTION",
     "InputError",
     "ModeheatError",

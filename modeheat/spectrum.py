@@ -6,8 +6,8 @@ grid (``Spectrum(frequency, density)``) or from a list of mode frequencies
 (:meth:`Spectrum.from_modes`, e.g. every mode of a q-mesh).
 
 Between sampled points the density is taken linear in g/ω², so that an ω² spectrum is
-represented exactly (and linear in g on an interval that starts at ω = 0 when the
-low-temperature continuation is off).
+represented exactly; with the low-temperature continuation off it is taken linear in g,
+which suits any low-frequency shape (flat for chains, linear for layers).
 
 **Low-temperature continuation.**  A grid, or a finite list of modes, does not resolve
 the lowest frequencies, and they alone decide C_v at low T.  By default
@@ -646,11 +646,12 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
     Returns (ModeSet, scale from the given density to the normalised one, ω_c in K,
     θ_D(0) of the fit in K).
     """
-    ratio_form = theta[:-1] > 0
-    if low_t != "off":
+    # With the ω² continuation the data are read as ω²-like (linear in g/ω²); without it,
+    # as they are (linear in g), which is right for any low-frequency shape.
+    ratio_form = np.full(theta.size - 1, low_t != "off")
+    if low_t != "off" and theta[0] > 0:
         # Below the first sample the density continues as ω² (g/ω² constant) down to 0.
-        if theta[0] > 0:
-            theta, g = np.concatenate(([0.0], theta)), np.concatenate(([0.0], g))
+        theta, g = np.concatenate(([0.0], theta)), np.concatenate(([0.0], g))
         ratio_form = np.ones(theta.size - 1, dtype=bool)
     positive = np.flatnonzero(g > 0)
     if cutoff is None:
