@@ -51,6 +51,15 @@ An example::
     0.5, 0.012, 0.008, 0.004   # a trailing comment
     1.0, 0.048, 0.032, 0.016
 
+Heat-capacity files
+-------------------
+:func:`read_heat_capacity` reads measured heat capacities from files that follow the
+same rules, with the columns temperature (K), heat capacity and, optionally, its
+standard uncertainty; the heat-capacity unit comes from the header (``C (J/(mol K))``;
+a unit may hold one level of parentheses of its own) or from the ``unit=`` argument.
+Its docstring lists the units and the basis (per formula unit, per mole of atoms, per
+mass).  :func:`cp_from_cv` and :func:`cv_from_cp` convert between C_p and C_v.
+
 Table files
 -----------
 :func:`write_table` writes a table from :func:`modeheat.thermo` as comma-separated
@@ -65,23 +74,37 @@ from __future__ import annotations
 import os
 import re
 import secrets
+import warnings
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
+from scipy import constants as _constants
 
-from .errors import InputError
+from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
 from .thermo import CAUTION
 from .units import FREQUENCY_UNITS, check_unit
 
-__all__ = ["read_spectrum", "write_table"]
+__all__ = [
+    "read_spectrum",
+    "write_table",
+    "read_heat_capacity",
+    "HeatCapacityWarning",
+    "HEAT_CAPACITY_UNITS",
+    "cp_from_cv",
+    "cv_from_cp",
+    "nernst_lindemann_coefficient",
+]
 
 _NUMBER = re.compile(r"[+-]?(?:(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?|nan|inf|infinity)", re.IGNORECASE | re.ASCII)
 _DECIMAL_COMMA = re.compile(r"[+-]?\d*,\d+(?:[eE][+-]?\d+)?", re.ASCII)
-_NAME_UNIT = re.compile(r"(?P<name>.*?)\s*(?:\((?P<paren>[^()]*)\)|\[(?P<bracket>[^\[\]]*)\])")
+# A unit may hold one level of parentheses of its own: "C (J/(mol K))".
+_NAME_UNIT = re.compile(
+    r"(?P<name>.*?)\s*(?:\((?P<paren>(?:[^()]|\([^()]*\))*)\)|\[(?P<bracket>[^\[\]]*)\])"
+)
 
 
 @dataclass(frozen=True)
@@ -200,7 +223,11 @@ def _read_text(path) -> str:
     return text.replace("\r\n", "\n").replace("\r", "\n")
 
 
-def _parse(text: str, path) -> _Table:
+_SPECTRUM_COLUMNS = "the frequency followed by at least one density column"
+
+
+def _parse(text: str, path, expected: str = _SPECTRUM_COLUMNS) -> _Table:
+    """The header and numbers of a column file; `expected` says what its columns are (for messages)."""
     header: _Header | None = None
     comment_above: tuple[int, str] | None = None  # the comment line just above, with its number
     candidate: tuple[int, str] | None = None  # that comment when the first data row came
@@ -231,7 +258,7 @@ def _parse(text: str, path) -> _Table:
             width = len(fields)
             if width < 2:
                 raise InputError(
-                    "only one column: expected the frequency followed by at least one density column",
+                    f"only one column: expected {expected}",
                     path=path,
                     line=number,
                 )
@@ -568,3 +595,472 @@ def _table_text(frame: pd.DataFrame) -> str:
     head = "".join("# " + " ".join(str(line).split()) + "\n" for line in lines)
     body = frame.to_csv(index=False, float_format="%.12g", na_rep="nan", lineterminator="\n")
     return head + body
+
+
+# --- heat-capacity files ---------------------------------------------------------------------
+class HeatCapacityWarning(ModeheatWarning):
+    """Heat-capacity data were repaired on the way in (rows sorted by temperature)."""
+
+
+_CP_COLUMNS = "the temperature followed by the heat capacity and, optionally, its uncertainty"
+_CP_NAMES = ("T", "C", "sigma")
+_ENERGY = {"j": 1.0, "mj": 1e-3, "cal": _constants.calorie, "mcal": 1e-3 * _constants.calorie}
+_AMOUNT = {  # amount in a heat-capacity unit → (basis, grams per amount or None)
+    "mol": ("formula", None),
+    "mol-atom": ("atom", None),
+    "mol-atoms": ("atom", None),
+    "g": ("mass", 1.0),
+    "kg": ("mass", 1000.0),
+}
+_TEMPERATURE_UNITS = ("k", "kelvin")
+HEAT_CAPACITY_UNITS = (
+    "J/(mol K)",
+    "mJ/(mol K)",
+    "cal/(mol K)",
+    "mcal/(mol K)",
+    "J/(mol-atom K)",
+    "J/(g K)",
+    "J/(kg K)",
+)
+
+
+@dataclass(frozen=True)
+class _CpUnit:
+    text: str  # as written
+    energy: float  # J per energy unit
+    basis: str  # "formula", "atom" or "mass"
+    grams: float | None  # grams per mass unit
+
+
+def _cp_unit(text: str) -> _CpUnit | None:
+    """Parse a heat-capacity unit such as ``J/(mol K)``, ``mJ mol-1 K-1`` or ``J/g/K``; None if unknown."""
+    s = str(text).strip().lower()
+    for mark in ("·", "⋅", "*"):
+        s = s.replace(mark, " ")
+    s = s.replace("⁻¹", "-1").replace("^-1", "-1").replace("mol atoms", "mol-atoms").replace("mol atom", "mol-atom")
+    if "/" in s:
+        numerator, denominator = s.split("/", 1)
+        words = denominator.replace("(", " ").replace(")", " ").replace("/", " ").split()
+        numerator = numerator.strip()
+    else:
+        first, *rest = s.split()
+        if not rest or not all(w.endswith("-1") for w in rest):
+            return None
+        numerator, words = first, [w[:-2] for w in rest]
+    if numerator not in _ENERGY or words.count("k") != 1:
+        return None
+    words.remove("k")
+    amount = "-".join(words)
+    if amount not in _AMOUNT:
+        return None
+    basis, grams = _AMOUNT[amount]
+    return _CpUnit(str(text).strip(), _ENERGY[numerator], basis, grams)
+
+
+def _known_cp_units() -> str:
+    return ", ".join(HEAT_CAPACITY_UNITS)
+
+
+def read_heat_capacity(
+    path: str | os.PathLike,
+    *,
+    unit: str | None = None,
+    atoms: float = 1,
+    molar_mass: float | None = None,
+    columns: Sequence[str | int] | None = None,
+    per: str | None = None,
+) -> pd.DataFrame:
+    """Read measured heat capacities from a text file of columns.
+
+    The file follows the rules of spectrum files (module docstring: comments, header,
+    separators, numbers, byte-order mark and line endings), with the columns
+    temperature, heat capacity and, optionally, its standard uncertainty, e.g.::
+
+        # Invented measurement
+        T (K)  C (J/(mol K))  sigma (J/(mol K))
+        2.0    0.00231        0.00005
+        3.0    0.00512        0.00008
+
+    Units
+    -----
+    The temperature is in K (a header may say ``T (K)``).  The heat-capacity unit comes
+    from the header of the C column (``C (J/(mol K))``) or from `unit`; when both give
+    one they must agree.  Known: J/(mol K), mJ/(mol K), cal/(mol K) and mcal/(mol K)
+    (the thermochemical calorie, 4.184 J, ``scipy.constants.calorie``), and J/(g K),
+    J/(kg K) (per mass: `molar_mass` is then required).  The unit may be written
+    ``J/(mol K)``, ``J/mol/K``, ``J mol-1 K-1`` or ``J/(mol·K)``.  An uncertainty column
+    with a unit of its own is converted with it, otherwise with the C column's unit.
+
+    Basis
+    -----
+    The result is per mole of formula units.  Molar data per mole of *atoms* are
+    multiplied by `atoms`; say so with ``per="atom"`` or in the unit itself,
+    ``J/(mol-atom K)`` (also ``mJ/(mol-atom K)``, ``cal/(mol-atom K)`` …).  Per-mass data
+    are multiplied by `molar_mass`, the grams per mole of formula units.
+
+    Parameters
+    ----------
+    path : str or os.PathLike — the file
+    unit : str, optional — the heat-capacity unit, when the header gives none
+    atoms : float — atoms per formula unit
+    molar_mass : float, optional — molar mass in g/mol of formula units (per-mass units)
+    columns : sequence of str or int, optional — the temperature, heat-capacity and
+        (optional) uncertainty columns, by header name or 0-based index; by default the
+        first two or three columns in that order
+    per : {"formula", "atom"}, optional — what the moles of a molar unit count; by
+        default what the unit says (``mol-atom``), else formula units
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns ``T`` [K], ``C`` [J/(mol K) per mole of formula units] and, when the file
+        has one, ``sigma`` [same unit]; sorted by T (repeated temperatures, repeated
+        measurements, are kept in file order).  ``attrs`` holds ``source`` (the path),
+        ``name`` (the file name), ``unit`` (the unit as read), ``factor`` (the factor
+        applied), ``units``, ``per`` ("formula"), ``basis``, ``atoms``, ``molar_mass``
+        and ``lines`` (the file line of each row).
+
+    Raises
+    ------
+    InputError
+        The file cannot be read or does not hold valid heat capacities: a temperature
+        ≤ 0, a non-finite value, a negative heat capacity, an uncertainty ≤ 0, text
+        where a number belongs, a row of the wrong length, an unknown unit, a per-mass
+        unit without `molar_mass`.  The message names the file and, where one applies,
+        the 1-based line.
+
+    Warns
+    -----
+    HeatCapacityWarning
+        The rows were not in increasing order of temperature and have been sorted.
+    """
+    atoms = _positive_argument("atoms", atoms, path)
+    if molar_mass is not None:
+        molar_mass = _positive_argument("molar_mass", molar_mass, path)
+    if per not in (None, "formula", "atom"):
+        raise InputError(f"per must be 'formula' or 'atom', not {per!r}", path=path)
+    table = _parse(_read_text(path), path, _CP_COLUMNS)
+    width = table.values.shape[1]
+    header = table.header
+    names = header.names if header is not None else list(_CP_NAMES[:width]) + [f"column {k}" for k in range(3, width)]
+    if columns is None:
+        if width > 3:
+            raise InputError(
+                f"{width} columns: choose the temperature, heat-capacity and (optional) uncertainty columns "
+                "with columns=",
+                path=path,
+            )
+        chosen = list(range(width))
+    else:
+        wanted = [columns] if isinstance(columns, (str, int)) else list(columns)
+        if len(wanted) not in (2, 3):
+            raise InputError(
+                "columns: choose the temperature and heat-capacity columns, and optionally the uncertainty "
+                f"column (2 or 3 columns, not {len(wanted)})",
+                path=path,
+            )
+        chosen = _select(wanted, names, header, path)
+    _check_temperature_unit(header, chosen[0], path)
+    c_unit = _resolve_cp_unit(unit, header, chosen[1], path)
+    factor = _cp_factor(c_unit, per, atoms, molar_mass, path, header)
+    sigma_factor = factor
+    if len(chosen) == 3 and header is not None and header.units[chosen[2]] is not None:
+        s_unit = _written_cp_unit(header, chosen[2], path)
+        sigma_factor = _cp_factor(s_unit, per, atoms, molar_mass, path, header)
+    values = table.values[:, chosen]
+    _check_cp_rows(values, [names[k] for k in chosen], [k + 1 for k in chosen], table.lines, path)
+    lines = np.asarray(table.lines)
+    T = values[:, 0]
+    order = np.argsort(T, kind="stable")
+    if np.any(np.diff(T) < 0):
+        first = int(np.flatnonzero(np.diff(T) < 0)[0]) + 1
+        warnings.warn(
+            f"{path}: the temperatures are not in increasing order (line {lines[first]} is below the row "
+            "above it); the rows were sorted by T",
+            HeatCapacityWarning,
+            stacklevel=2,
+        )
+    data = {"T": T[order], "C": values[order, 1] * factor}
+    units = {"T": "K", "C": "J/(mol K)"}
+    if len(chosen) == 3:
+        data["sigma"] = values[order, 2] * sigma_factor
+        units["sigma"] = "J/(mol K)"
+    frame = pd.DataFrame(data)
+    frame.attrs.update(
+        source=str(path),
+        name=Path(path).name,
+        unit=c_unit.text,
+        factor=factor,
+        units=units,
+        per="formula",
+        basis="per mole of formula units",
+        atoms=atoms,
+        molar_mass=molar_mass,
+        lines=[int(v) for v in lines[order]],
+    )
+    return frame
+
+
+def _positive_argument(label: str, value, path) -> float:
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"{label} must be a number, not {value!r}", path=path) from None
+    if not (np.isfinite(v) and v > 0):
+        raise InputError(f"{label} must be positive and finite, not {value!r}", path=path)
+    return v
+
+
+def _check_temperature_unit(header: _Header | None, col: int, path) -> None:
+    written = header.units[col] if header is not None else None
+    if written is not None and written.strip().lower() not in _TEMPERATURE_UNITS:
+        raise InputError(
+            f"unknown temperature unit {written!r} in header field {col + 1} ({header.fields[col]!r}); "
+            "temperatures must be in K",
+            path=path,
+            line=header.line,
+        )
+
+
+def _written_cp_unit(header: _Header, col: int, path) -> _CpUnit:
+    parsed = _cp_unit(header.units[col])
+    if parsed is None:
+        raise InputError(
+            f"unknown heat-capacity unit {header.units[col]!r} in header field {col + 1} "
+            f"({header.fields[col]!r}); expected one of {_known_cp_units()}",
+            path=path,
+            line=header.line,
+        )
+    return parsed
+
+
+def _resolve_cp_unit(unit: str | None, header: _Header | None, col: int, path) -> _CpUnit:
+    given = None
+    if unit is not None:
+        given = _cp_unit(unit)
+        if given is None:
+            raise InputError(f"unknown heat-capacity unit {unit!r}; expected one of {_known_cp_units()}", path=path)
+    if header is None or header.units[col] is None:
+        if given is None:
+            raise InputError(
+                "the heat-capacity unit is not given: write it in the header, e.g. 'C (J/(mol K))', or pass "
+                f"it (unit=); one of {_known_cp_units()}",
+                path=path,
+            )
+        return given
+    written = _written_cp_unit(header, col, path)
+    if given is not None and (given.energy, given.basis, given.grams) != (written.energy, written.basis, written.grams):
+        raise InputError(
+            f"the header gives the heat capacities in {written.text} but the unit {given.text} was asked for",
+            path=path,
+            line=header.line,
+        )
+    return written
+
+
+def _cp_factor(u: _CpUnit, per: str | None, atoms: float, molar_mass: float | None, path, header) -> float:
+    """J/(mol K) per mole of formula units for one of `u`."""
+    line = header.line if header is not None else None
+    if u.basis == "mass":
+        if per == "atom":
+            raise InputError(
+                f"per='atom' applies to molar units, not to {u.text}; a per-mass unit is converted with the "
+                "molar mass of the formula unit",
+                path=path,
+            )
+        if molar_mass is None:
+            raise InputError(
+                f"the heat capacities are per mass ({u.text}): give molar_mass, the molar mass in g/mol of "
+                "formula units, to convert them to J/(mol K)",
+                path=path,
+                line=line,
+            )
+        return u.energy * molar_mass / u.grams
+    basis = u.basis
+    if per is not None and basis == "atom" and per != "atom":
+        raise InputError(f"the unit {u.text} is per mole of atoms but per={per!r} was asked for", path=path, line=line)
+    if per == "atom":
+        basis = "atom"
+    return u.energy * (atoms if basis == "atom" else 1.0)
+
+
+def _check_cp_rows(values: np.ndarray, names: list[str], fields: list[int], lines: list[int], path) -> None:
+    """The first row (in file order) that breaks a rule gives the error."""
+    T, C = values[:, 0], values[:, 1]
+    sigma = values[:, 2] if values.shape[1] == 3 else None
+    problems = [~np.isfinite(values).all(axis=1), ~(T > 0), C < 0]
+    if sigma is not None:
+        problems.append(~(sigma > 0))
+    bad = np.logical_or.reduce(problems)
+    if not bad.any():
+        return
+    i = int(np.flatnonzero(bad)[0])
+    where = lambda k: f"field {fields[k]} ({names[k]})"  # noqa: E731
+    row = values[i]
+    if not np.isfinite(row).all():
+        k = int(np.flatnonzero(~np.isfinite(row))[0])
+        problem = f"{where(k)} is {float(row[k])!r}, not a finite number"
+    elif not T[i] > 0:
+        problem = f"{where(0)} is {float(T[i])!r}: temperatures must be above 0 K"
+    elif C[i] < 0:
+        problem = f"{where(1)} is {float(C[i])!r}: a heat capacity cannot be negative"
+    else:
+        problem = f"{where(2)} is {float(sigma[i])!r}: an uncertainty must be positive"
+    raise InputError(problem, path=path, line=lines[i])
+
+
+# --- C_p ↔ C_v ----------------------------------------------------------------------------------
+def _of_temperature(value, T: np.ndarray, label: str) -> np.ndarray:
+    """A number, an array matching T, or a callable of T (K) → array like T."""
+    v = value(T) if callable(value) else value
+    try:
+        out = np.broadcast_to(np.asarray(v, dtype=float), T.shape)
+    except (TypeError, ValueError):
+        raise InputError(f"{label} must be a number, an array like the temperatures or a callable of T") from None
+    if not np.all(np.isfinite(out)):
+        raise InputError(f"{label} must be finite")
+    return out
+
+
+def _dilatation(T, c, alpha, bulk_modulus, molar_volume, gruneisen, A, who):
+    T = np.asarray(T, dtype=float)
+    c = np.asarray(c, dtype=float)
+    T, c = np.broadcast_arrays(T, c)
+    if np.any(~np.isfinite(T) | (T < 0)):
+        raise InputError(f"{who}: temperatures must be finite and ≥ 0 K")
+    identity = bulk_modulus is not None or molar_volume is not None
+    forms = [identity, gruneisen is not None, A is not None]
+    if sum(forms) != 1:
+        raise InputError(
+            f"{who}: give one form: alpha, bulk_modulus and molar_volume (thermodynamic identity); "
+            "alpha and gruneisen (Grüneisen); or A (Nernst–Lindemann)"
+        )
+    if identity:
+        if alpha is None or bulk_modulus is None or molar_volume is None:
+            raise InputError(f"{who}: the thermodynamic identity needs alpha, bulk_modulus and molar_volume")
+        b = _of_temperature(bulk_modulus, T, "bulk_modulus")
+        v = _of_temperature(molar_volume, T, "molar_volume")
+        return T, c, "identity", _of_temperature(alpha, T, "alpha") ** 2 * b * v * T
+    if gruneisen is not None:
+        if alpha is None:
+            raise InputError(f"{who}: the Grüneisen form needs alpha and gruneisen")
+        return T, c, "gruneisen", 1.0 + _of_temperature(alpha, T, "alpha") * _of_temperature(gruneisen, T, "gruneisen") * T
+    if alpha is not None:
+        raise InputError(f"{who}: the Nernst–Lindemann form takes A alone, not alpha")
+    return T, c, "nernst-lindemann", _of_temperature(A, T, "A") * T
+
+
+def cp_from_cv(
+    temperatures,
+    cv,
+    *,
+    alpha=None,
+    bulk_modulus=None,
+    molar_volume=None,
+    gruneisen=None,
+    A=None,
+) -> np.ndarray:
+    """C_p from C_v, in the same unit (J/(mol K) per mole of formula units).
+
+    One of three forms, chosen by the arguments given:
+
+    * the thermodynamic identity C_p − C_v = α_V²·B_T·V_m·T (``alpha``,
+      ``bulk_modulus``, ``molar_volume``);
+    * the Grüneisen form C_p = C_v·(1 + α_V·γ_G·T) (``alpha``, ``gruneisen``), exact
+      with the thermodynamic Grüneisen parameter γ_G = α_V·B_T·V_m/C_v;
+    * the Nernst–Lindemann form C_p − C_v = A·C_p²·T (Nernst & Lindemann, 1911)
+      (``A``), solved for C_p: C_p = 2·C_v/(1 + √(1 − 4·A·T·C_v)).
+
+    Every coefficient may be a number, an array like the temperatures or a callable
+    of T (K) returning one.
+
+    Parameters
+    ----------
+    temperatures : array_like — T in K, ≥ 0
+    cv : array_like — C_v in J/(mol K)
+    alpha : float, array or callable — volumetric thermal expansion coefficient α_V in
+        1/K (three times the linear coefficient of a cubic solid)
+    bulk_modulus : float, array or callable — isothermal bulk modulus B_T in Pa
+    molar_volume : float, array or callable — molar volume V_m in m³/mol (per mole of
+        the same units as the heat capacity)
+    gruneisen : float, array or callable — Grüneisen parameter γ_G, dimensionless
+    A : float, array or callable — Nernst–Lindemann coefficient in mol/J
+
+    Returns
+    -------
+    numpy.ndarray — C_p in J/(mol K)
+
+    Raises
+    ------
+    InputError
+        Not exactly one form is given, a coefficient is missing or not finite, or
+        4·A·T·C_v > 1 (no C_p satisfies the Nernst–Lindemann form).
+    """
+    T, c, form, k = _dilatation(temperatures, cv, alpha, bulk_modulus, molar_volume, gruneisen, A, "cp_from_cv")
+    if form == "identity":
+        return c + k
+    if form == "gruneisen":
+        return c * k
+    disc = 1.0 - 4.0 * k * c
+    if np.any(disc < 0):
+        i = int(np.flatnonzero(disc.ravel() < 0)[0])
+        raise InputError(
+            f"cp_from_cv: no C_p satisfies C_p − C_v = A·C_p²·T at T = {float(T.ravel()[i]):g} K: "
+            f"4·A·T·C_v = {float(1 - disc.ravel()[i]):.6g} exceeds 1 (A too large)",
+            index=i,
+        )
+    # This form of the root keeps full precision as A·T·C_v → 0.
+    return 2.0 * c / (1.0 + np.sqrt(disc))
+
+
+def cv_from_cp(
+    temperatures,
+    cp,
+    *,
+    alpha=None,
+    bulk_modulus=None,
+    molar_volume=None,
+    gruneisen=None,
+    A=None,
+) -> np.ndarray:
+    """C_v from C_p, in the same unit: the inverse of :func:`cp_from_cv`.
+
+    Thermodynamic identity C_v = C_p − α_V²·B_T·V_m·T; Grüneisen form
+    C_v = C_p/(1 + α_V·γ_G·T); Nernst–Lindemann form (Nernst & Lindemann, 1911)
+    C_v = C_p − A·C_p²·T.  Parameters as for :func:`cp_from_cv`, with `cp` the
+    heat capacity at constant pressure in J/(mol K).
+    """
+    T, c, form, k = _dilatation(temperatures, cp, alpha, bulk_modulus, molar_volume, gruneisen, A, "cv_from_cp")
+    if form == "identity":
+        return c - k
+    if form == "gruneisen":
+        return c / k
+    return c - k * c * c
+
+
+def nernst_lindemann_coefficient(temperature: float, cp: float, *, alpha, bulk_modulus, molar_volume) -> float:
+    """The Nernst–Lindemann coefficient A in mol/J from expansion data at one temperature.
+
+    Equating the thermodynamic identity C_p − C_v = α_V²·B_T·V_m·T with the
+    Nernst–Lindemann form C_p − C_v = A·C_p²·T at a reference temperature gives
+    A = α_V²·B_T·V_m / C_p².  Elsewhere A·C_p²·T then scales C_p − C_v with
+    temperature; it is close to constant because α_V follows C_v (Grüneisen's rule).
+
+    Parameters
+    ----------
+    temperature : float — the reference temperature in K (the relation holds at any
+        T; it is an argument so that callables of T can be given)
+    cp : float — C_p at that temperature in J/(mol K)
+    alpha : float or callable — volumetric expansion coefficient α_V in 1/K
+    bulk_modulus : float or callable — isothermal bulk modulus B_T in Pa
+    molar_volume : float or callable — molar volume V_m in m³/mol
+    """
+    T = np.asarray(float(temperature))
+    if not (np.isfinite(T) and T > 0):
+        raise InputError(f"temperature must be positive and finite, not {temperature!r}")
+    if not (np.isfinite(cp) and cp > 0):
+        raise InputError(f"cp must be positive and finite, not {cp!r}")
+    a = _of_temperature(alpha, T, "alpha")
+    b = _of_temperature(bulk_modulus, T, "bulk_modulus")
+    v = _of_temperature(molar_volume, T, "molar_volume")
+    return float(a * a * b * v / (cp * cp))
