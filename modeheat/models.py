@@ -722,3 +722,46 @@ def solid(
     comps += [c.replace(modes=n_opt * s / shares.sum()) for c, s in zip(optical, shares)]
     comps += list(extras)
     return Mixture(tuple(comps), atoms=atoms, name=name)
+
+
+# --- C_p − C_v as a component -------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class Dilatation(Component):
+    """The dilatation term C_p − C_v in the Nernst–Lindemann form C_p − C_v = A·C_p²·T.
+
+    Nernst & Lindemann (1911).  The component carries no modes and adds nothing to
+    C_v (:func:`modeheat.thermo` and :func:`modeheat.heat_capacity` ignore it); it
+    turns a mixture's C_v into C_p, so that a fit of measured C_p
+    (:func:`modeheat.fitting.fit`) can vary A like any other parameter.
+
+    Parameters
+    ----------
+    A : float — Nernst–Lindemann coefficient in mol/J (per mole of formula units), ≥ 0
+    name : str, optional
+    """
+
+    A: float
+    name: str | None = None
+    kind: ClassVar[str] = "dilatation"
+    _continuous: ClassVar[tuple[str, ...]] = ("A",)
+
+    def __post_init__(self):
+        object.__setattr__(self, "A", _non_negative(self.kind, "A", self.A))
+        super().__post_init__()
+
+    def _parts(self):
+        return [], [], [], []
+
+    def cp_from_cv(self, temperatures, cv) -> np.ndarray:
+        """C_p in J/(mol K) from C_v in J/(mol K) at temperatures in K.
+
+        C_p = 2·C_v/(1 + √(1 − 4·A·T·C_v)), the root of C_p − C_v = A·C_p²·T that goes
+        to C_v as A → 0; an :class:`~modeheat.errors.InputError` where 4·A·T·C_v > 1.
+        """
+        from .data import cp_from_cv  # data.py imports the spectrum and thermo modules
+
+        return cp_from_cv(temperatures, cv, A=self.A)
+
+
+__all__.append("Dilatation")
