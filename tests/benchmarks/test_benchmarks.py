@@ -26,3 +26,14 @@ def test_lattice_benchmark_prints_time_and_memory(capsys):
     print(out)
     # common practice: 3 modes per atom; speed and memory are reported, not asserted
     assert abs(result["modes"] - 3.0) < 1e-9 and "peak memory" in out
+
+
+def test_fitting_benchmark_prints_times(capsys):
+    from bench_fitting import main
+
+    times = main()
+    out = capsys.readouterr().out
+    print(out)
+    assert "target" in out and times["fit_s"] > 0
+    # the benchmark's fit must be right, whatever its speed: truth within 4σ (seeded data)
+    assert times["worst_sigma"] < 4
