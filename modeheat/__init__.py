@@ -1,9 +1,18 @@
 """modeheat — from a phonon density of states to heat capacity, entropy, energy and θ_D(T)."""
 
 from . import lattice
-from .data import read_spectrum, write_table
+from .data import (
+    HeatCapacityWarning,
+    cp_from_cv,
+    cv_from_cp,
+    nernst_lindemann_coefficient,
+    read_heat_capacity,
+    read_spectrum,
+    write_table,
+)
+from .fitting import DebyeBreakdown, FitResult, FitWarning, LowTemperatureFit, debye_breakdown, fit, low_temperature_fit
 from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
-from .models import Band, Component, Debye, Einstein, Electronic, Mixture, ModeCountWarning, Schottky, SineChain, solid
+from .models import Band, Component, Debye, Dilatation, Einstein, Electronic, Mixture, ModeCountWarning, Schottky, SineChain, solid
 from .spectrum import ReducedDensity, Spectrum, debye_temperature_from_sound
 from .thermo import (
     CAUTION,
@@ -19,6 +28,19 @@ from .thermo import (
 __version__ = "0.1.0"
 
 __all__ = [
+    "DebyeBreakdown",
+    "Dilatation",
+    "FitResult",
+    "FitWarning",
+    "HeatCapacityWarning",
+    "LowTemperatureFit",
+    "cp_from_cv",
+    "cv_from_cp",
+    "debye_breakdown",
+    "fit",
+    "low_temperature_fit",
+    "nernst_lindemann_coefficient",
+    "read_heat_capacity",
     "Band",
     "Component",
     "Debye",

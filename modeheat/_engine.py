@@ -12,8 +12,10 @@ node sum is a correlation.  Nodes are spread onto a uniform ln θ grid (step
 is a polynomial of degree < SPREAD over the stencil; the correlation is one FFT per
 kernel, and values at the requested temperatures come from ``GATHER``-point
 Lagrange interpolation in ln T.  The spreading is cached per ModeSet.  Small
-problems, and temperatures so low that every node is frozen out (θ_min/T > ``FROZEN``),
-are summed directly, which keeps the relative accuracy of exponentially small values.
+problems, temperatures so low that every node is frozen out (θ_min/T > ``FROZEN``), and
+temperatures where the node sum is so small that the FFT's absolute rounding error
+would show (C/R below ``NOISE_FLOOR`` of the node modes) are summed directly over the
+nodes that matter, which keeps the relative accuracy of exponentially small values.
 """
 
 from __future__ import annotations
@@ -33,6 +35,7 @@ DELTA = 1.0 / 256.0  # ln-grid step for θ and T
 SPREAD = 6  # points per node on the ln θ grid
 GATHER = 8  # points per temperature on the ln T grid
 FROZEN = 12.0  # θ_min/T above which the node sum is done directly
+NOISE_FLOOR = 1e-6  # node C/R below this fraction of the node modes is summed directly
 DIRECT_LIMIT = 40_000  # nodes × temperatures below which the direct sum is cheaper
 _CHUNK = 2_000_000  # elements per block in the direct sum
 
@@ -249,13 +252,16 @@ class ModeSet:
         cv, e, f = zeros, zeros.copy(), zeros.copy()
         tmin = float(self.theta.min())
         frozen = T < tmin / FROZEN
-        if np.any(frozen):
-            # Only nodes within ~50 kT of the lowest one matter when all are frozen out.
-            keep = self.theta < tmin + 50.0 * float(T[frozen].max())
-            cv[frozen], e[frozen], f[frozen] = _direct(self.theta[keep], self.weight[keep], T[frozen])
         warm = ~frozen
         if np.any(warm):
             cv[warm], e[warm], f[warm] = self._correlate(T[warm])
+            # The FFT's rounding error is absolute (~1e-16 of the whole sum); where the
+            # node sum is tiny it would dominate, so those temperatures are summed directly.
+            frozen |= warm & (cv < NOISE_FLOOR * float(np.sum(self.weight)))
+        if np.any(frozen):
+            # Nodes more than ~50 kT above the lowest one contribute < e^(−50) per mode.
+            keep = self.theta < tmin + 50.0 * float(T[frozen].max())
+            cv[frozen], e[frozen], f[frozen] = _direct(self.theta[keep], self.weight[keep], T[frozen])
         return cv, e, f
 
     def _spread(self) -> tuple[int, np.ndarray]:

@@ -394,3 +394,18 @@ def test_array_functions_match_the_table():
     assert np.array_equal(entropy(sp, T), tab["S"].to_numpy())
     assert np.array_equal(internal_energy(sp, T), tab["U"].to_numpy())
     assert np.array_equal(free_energy(sp, T), tab["F"].to_numpy())
+
+
+def test_many_temperatures_at_once_equal_one_at_a_time():
+    # One call over a wide range takes the FFT path; single temperatures are summed
+    # directly (the defining sum).  Tiny values must not inherit the FFT's absolute
+    # rounding error (regression: C at 3e-4 K was off by a factor of ~2).
+    from modeheat import Debye
+
+    sp = Debye(300.0).spectrum()
+    T = np.geomspace(3e-4, 3000.0, 300)
+    batch_cv, batch_s = heat_capacity(sp, T), entropy(sp, T)
+    single_cv = np.array([heat_capacity(sp, [t])[0] for t in T])
+    single_s = np.array([entropy(sp, [t])[0] for t in T])
+    assert np.allclose(batch_cv, single_cv, rtol=1e-7, atol=0)
+    assert np.allclose(batch_s, single_s, rtol=1e-7, atol=0)
