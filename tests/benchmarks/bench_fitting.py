@@ -9,27 +9,16 @@ seeded, noisy rendering of the model itself, fitted from a start 10–20 % off.
 
 from __future__ import annotations
 
-import math
-import time
 
 import numpy as np
 import pandas as pd
 
 from modeheat import Debye, Einstein, Electronic, Mixture, heat_capacity
 from modeheat.fitting import fit, low_temperature_fit
+from bench_thermo import best_of  # one timing rule for every benchmark
 
 TRUE = Mixture((Debye(250.0), Einstein(180.0, modes=1.5), Einstein(420.0, modes=1.5), Electronic(2e-3)), atoms=2)
 START = Mixture((Debye(220.0), Einstein(150.0, modes=1.5), Einstein(500.0, modes=1.5), Electronic(1e-3)), atoms=2)
-
-
-def best_of(fn, repeat=5):
-    """Best wall time of `repeat` calls, and the last result."""
-    best, out = math.inf, None
-    for _ in range(repeat):
-        t = time.perf_counter()
-        out = fn()
-        best = min(best, time.perf_counter() - t)
-    return best, out
 
 
 def invented_data(rng) -> pd.DataFrame:
