@@ -9,7 +9,6 @@ seeded, noisy rendering of the model itself, fitted from a start 10–20 % off.
 
 from __future__ import annotations
 
-
 import numpy as np
 import pandas as pd
 
