@@ -90,6 +90,18 @@ def _temperature(text: str, spec: str) -> float:
 
 
 # --- argument types ------------------------------------------------------------------------
+def _low_t_arg(text: str) -> str | float:
+    if text in ("fit", "off"):
+        return text
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected 'fit', 'off' or a Debye temperature in K, not {text!r}") from None
+    if not (np.isfinite(value) and value > 0):
+        raise argparse.ArgumentTypeError(f"a Debye temperature must be positive, not {text!r}")
+    return value
+
+
 def _temperatures_arg(spec: str) -> np.ndarray:
     try:
         return parse_temperatures(spec)
@@ -215,6 +227,22 @@ def build_parser() -> argparse.ArgumentParser:
         "--total", metavar="NAME", help="the total-density column, or 'sum' to add up the density columns"
     )
     table.add_argument(
+        "--low-t",
+        type=_low_t_arg,
+        default="fit",
+        metavar="fit|off|THETA",
+        help="low-temperature continuation below what the grid resolves: 'fit' (default, an ω² "
+        "branch with the spectrum's own lowest mode count), 'off', or a Debye temperature "
+        "θ_D(0) in K (e.g. from elastic constants; best for coarse q-mesh spectra)",
+    )
+    table.add_argument(
+        "--low-t-cutoff",
+        type=_positive_float,
+        metavar="FREQ",
+        help="cut-off frequency of that continuation, in the files' unit (default: the third "
+        "sampled point above the first non-zero density)",
+    )
+    table.add_argument(
         "--jobs",
         type=_positive_int,
         metavar="N",
@@ -234,6 +262,8 @@ class _Job:
     total: str | None
     per: str
     temperatures: np.ndarray
+    low_t: str | float = "fit"
+    low_t_cutoff: float | None = None
 
 
 @dataclass
@@ -249,7 +279,13 @@ def _compute(job: _Job) -> _Outcome:
     with warnings.catch_warnings(record=True) as caught:
         try:
             spectrum = read_spectrum(
-                job.path, unit=job.unit, atoms=job.atoms, columns=job.columns, total=job.total
+                job.path,
+                unit=job.unit,
+                atoms=job.atoms,
+                columns=job.columns,
+                total=job.total,
+                low_t=job.low_t,
+                low_t_cutoff=job.low_t_cutoff,
             )
             outcome.frame = thermo(spectrum, job.temperatures, per=job.per)
         except (ModeheatError, OSError) as exc:
@@ -291,7 +327,10 @@ def _table(args: argparse.Namespace) -> int:
     if args.output is not None:
         _check_output(args.output, files, args.overwrite)
     jobs = [
-        _Job(path, args.unit, args.atoms, args.columns, args.total, args.per, args.temperatures)
+        _Job(
+            path, args.unit, args.atoms, args.columns, args.total, args.per, args.temperatures,
+            args.low_t, args.low_t_cutoff,
+        )
         for path in files
     ]
     workers = min(args.jobs or os.cpu_count() or 1, len(jobs))

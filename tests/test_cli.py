@@ -59,6 +59,9 @@ def test_help_exits_0(capsys):
         ["table", "x.txt", "--atoms", "0"],
         ["table", "x.txt", "--jobs", "0"],
         ["table", "x.txt", "--columns", "0"],
+        ["table", "x.txt", "--low-t", "warm"],
+        ["table", "x.txt", "--low-t", "-300"],
+        ["table", "x.txt", "--low-t-cutoff", "0"],
         ["frobnicate"],
     ],
 )
@@ -120,6 +123,21 @@ def test_csv_output_carries_caution_units_and_basis(tmp_path, capsys):
     # The CSV keeps 12 significant digits.
     np.testing.assert_allclose(table.to_numpy(), expected.to_numpy(), rtol=1e-11)
     assert not [p for p in tmp_path.iterdir() if p.name != "table.csv"], "no temporary file left"
+
+
+def test_low_temperature_continuation_options(tmp_path, capsys):
+    out = tmp_path / "table.csv"
+    args = ["table", str(GOOD), "--temperatures", "0,1,300", "--low-t", "250", "-o", str(out)]
+    assert main(args) == 0
+    capsys.readouterr()
+    table = pd.read_csv(out, comment="#")
+    # common practice: θ_D(T → 0) is the Debye temperature of the ω² branch given
+    assert table["theta_D"][0] == pytest.approx(250.0, rel=1e-12)
+    expected = thermo(read_spectrum(GOOD, low_t=250.0), [0.0, 1.0, 300.0])
+    np.testing.assert_allclose(table.to_numpy(), expected.to_numpy(), rtol=1e-11)
+    assert main(["table", str(GOOD), "--temperatures", "1", "--low-t", "off"]) == 0
+    assert main(["table", str(GOOD), "--temperatures", "1", "--low-t-cutoff", "1e9"]) == 1
+    assert "low_t_cutoff" in capsys.readouterr().err
 
 
 # --- several files ------------------------------------------------------------------------------
