@@ -26,7 +26,7 @@ import pandas as pd
 
 from .data import read_spectrum, write_table
 from .errors import InputError, ModeheatError
-from .thermo import CAUTION, thermo
+from .thermo import CAUTION, basis_text, thermo
 from .units import FREQUENCY_UNITS, check_unit
 
 __all__ = ["main", "build_parser", "parse_temperatures"]
@@ -209,9 +209,16 @@ def build_parser() -> argparse.ArgumentParser:
     )
     table.add_argument(
         "--per",
-        choices=("formula", "atom"),
+        choices=("formula", "atom", "gram"),
         default="formula",
-        help="per mole of formula units or of atoms (default: formula)",
+        help="per mole of formula units, per mole of atoms, or per gram (needs --molar-mass) "
+        "(default: formula)",
+    )
+    table.add_argument(
+        "--molar-mass",
+        type=_positive_float,
+        metavar="G_PER_MOL",
+        help="molar mass in g/mol of formula units, for --per gram",
     )
     table.add_argument("-o", "--output", metavar="OUT.csv", help="also write the table to this CSV file")
     table.add_argument(
@@ -248,8 +255,13 @@ def build_parser() -> argparse.ArgumentParser:
         metavar="N",
         help="worker processes for several files (default: one per file, at most the CPU count)",
     )
-    table.set_defaults(run=_table)
+    table.set_defaults(run=_table, check=_check_table_args, usage=table)
     return parser
+
+
+def _check_table_args(args: argparse.Namespace) -> None:
+    if (args.per == "gram") != (args.molar_mass is not None):
+        args.usage.error("--per gram and --molar-mass go together")
 
 
 # --- the work of one file (runs in a worker process) ----------------------------------------------------
@@ -264,6 +276,7 @@ class _Job:
     temperatures: np.ndarray
     low_t: str | float = "fit"
     low_t_cutoff: float | None = None
+    molar_mass: float | None = None
 
 
 @dataclass
@@ -287,7 +300,7 @@ def _compute(job: _Job) -> _Outcome:
                 low_t=job.low_t,
                 low_t_cutoff=job.low_t_cutoff,
             )
-            outcome.frame = thermo(spectrum, job.temperatures, per=job.per)
+            outcome.frame = thermo(spectrum, job.temperatures, per=job.per, molar_mass=job.molar_mass)
         except (ModeheatError, OSError) as exc:
             outcome.error = str(exc)
     outcome.warnings = [str(w.message) for w in caught]
@@ -329,7 +342,7 @@ def _table(args: argparse.Namespace) -> int:
     jobs = [
         _Job(
             path, args.unit, args.atoms, args.columns, args.total, args.per, args.temperatures,
-            args.low_t, args.low_t_cutoff,
+            args.low_t, args.low_t_cutoff, args.molar_mass,
         )
         for path in files
     ]
@@ -404,9 +417,8 @@ def _format(frame: pd.DataFrame) -> str:
 
 
 def _basis(frame: pd.DataFrame) -> str:
-    if frame.attrs.get("per") == "atom":
-        return "values per mole of atoms"
-    return f"values per mole of formula units (atoms per formula unit: {frame.attrs.get('atoms', 1):g})"
+    a = frame.attrs
+    return "values " + (a.get("basis") or basis_text(a.get("per", "formula"), a.get("atoms", 1), a.get("molar_mass")))
 
 
 def _say(kind: str, message: str) -> None:
@@ -429,6 +441,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     parser = build_parser()
     try:
         args = parser.parse_args(argv)
+        if hasattr(args, "check"):
+            args.check(args)
     except SystemExit as exc:  # --help and usage errors
         return exc.code if isinstance(exc.code, int) else (0 if exc.code is None else 2)
     if not hasattr(args, "run"):

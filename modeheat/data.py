@@ -85,7 +85,7 @@ from scipy import constants as _constants
 
 from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
-from .thermo import CAUTION
+from .thermo import CAUTION, basis_text
 from .units import FREQUENCY_UNITS, check_unit
 
 __all__ = [
@@ -570,16 +570,11 @@ def _table_text(frame: pd.DataFrame) -> str:
     attrs = frame.attrs
     units: Mapping[str, str] | None = attrs.get("units")
     per = attrs.get("per")
-    if not units or per not in ("formula", "atom"):
+    if not units or per not in ("formula", "atom", "gram"):
         raise InputError(
             "the table carries no units or basis in frame.attrs ('units', 'per'); make it with modeheat.thermo"
         )
-    if per == "atom":
-        basis = "per mole of atoms"
-    else:
-        basis = "per mole of formula units"
-        if attrs.get("atoms") is not None:
-            basis += f" (atoms per formula unit: {attrs['atoms']:g})"
+    basis = attrs.get("basis") or basis_text(per, attrs.get("atoms", 1), attrs.get("molar_mass"))
     lines = [
         "modeheat thermodynamic table",
         f"caution: {CAUTION}",

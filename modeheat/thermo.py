@@ -27,6 +27,7 @@ __all__ = [
     "free_energy",
     "zero_point_energy",
     "effective_debye_temperature",
+    "basis_text",
     "CAUTION",
 ]
 
@@ -36,7 +37,7 @@ CAUTION = (
     "thermal design, and defer to applicable codes and licensed engineering practice."
 )
 
-_PER = ("formula", "atom")
+_PER = ("formula", "atom", "gram")
 
 
 def _modeset(source) -> ModeSet:
@@ -63,83 +64,106 @@ def _temperatures(temperatures) -> np.ndarray:
     return T
 
 
-def _scale(ms: ModeSet, per: str) -> float:
+def _scale(ms: ModeSet, per: str, molar_mass: float | None) -> float:
+    """Factor from per mole of formula units to the asked basis."""
     if per not in _PER:
         raise InputError(f"per must be one of {_PER}, not {per!r}")
+    if per == "gram":
+        if molar_mass is None or not (np.isfinite(molar_mass) and molar_mass > 0):
+            raise InputError(f"per='gram' needs molar_mass, the g/mol of formula units, not {molar_mass!r}")
+        return 1.0 / molar_mass
+    if molar_mass is not None:
+        raise InputError("molar_mass is used only with per='gram'")
     return 1.0 if per == "formula" else 1.0 / ms.atoms
 
 
-def _evaluate(source, temperatures, per):
+def basis_text(per: str, atoms: float, molar_mass: float | None = None) -> str:
+    """The basis of a table in words, as exports print it."""
+    if per == "atom":
+        return "per mole of atoms"
+    if per == "gram":
+        return f"per gram (molar mass {molar_mass:g} g/mol of formula units; atoms per formula unit: {atoms:g})"
+    return f"per mole of formula units (atoms per formula unit: {atoms:g})"
+
+
+def _evaluate(source, temperatures, per, molar_mass=None):
     ms = _modeset(source)
     T = _temperatures(temperatures)
-    return ms, T, ms.evaluate(T), R * _scale(ms, per)
+    return ms, T, ms.evaluate(T), R * _scale(ms, per, molar_mass)
 
 
-def heat_capacity(source, temperatures, *, per: str = "formula") -> np.ndarray:
+def heat_capacity(source, temperatures, *, per: str = "formula", molar_mass: float | None = None) -> np.ndarray:
     """Isochoric heat capacity C_v in J/(mol K).
 
     Parameters
     ----------
     source : Spectrum, component or mixture
     temperatures : array_like — T in K, ≥ 0
-    per : {"formula", "atom"} — per mole of formula units or of atoms
+    per : {"formula", "atom", "gram"} — per mole of formula units, per mole of atoms, or per
+        gram (then J/(g K))
+    molar_mass : float, optional — g/mol of formula units, for ``per="gram"``
     """
-    _, _, r, k = _evaluate(source, temperatures, per)
+    _, _, r, k = _evaluate(source, temperatures, per, molar_mass)
     return k * r["cv"]
 
 
-def entropy(source, temperatures, *, per: str = "formula") -> np.ndarray:
+def entropy(source, temperatures, *, per: str = "formula", molar_mass: float | None = None) -> np.ndarray:
     """Entropy S in J/(mol K) (0 at T = 0)."""
-    _, _, r, k = _evaluate(source, temperatures, per)
+    _, _, r, k = _evaluate(source, temperatures, per, molar_mass)
     return k * r["s"]
 
 
-def internal_energy(source, temperatures, *, per: str = "formula") -> np.ndarray:
+def internal_energy(source, temperatures, *, per: str = "formula", molar_mass: float | None = None) -> np.ndarray:
     """Internal energy U in J/mol, zero-point energy included."""
-    _, _, r, k = _evaluate(source, temperatures, per)
+    _, _, r, k = _evaluate(source, temperatures, per, molar_mass)
     return k * r["u"]
 
 
-def free_energy(source, temperatures, *, per: str = "formula") -> np.ndarray:
+def free_energy(source, temperatures, *, per: str = "formula", molar_mass: float | None = None) -> np.ndarray:
     """Helmholtz free energy F = U − TS in J/mol, zero-point energy included."""
-    _, _, r, k = _evaluate(source, temperatures, per)
+    _, _, r, k = _evaluate(source, temperatures, per, molar_mass)
     return k * r["f"]
 
 
-def zero_point_energy(source, *, per: str = "formula") -> float:
-    """Zero-point energy U_0 = Σ ħω/2 in J/mol."""
+def zero_point_energy(source, *, per: str = "formula", molar_mass: float | None = None) -> float:
+    """Zero-point energy U_0 = Σ ħω/2 in J/mol (J/g with ``per="gram"``)."""
     ms = _modeset(source)
-    return R * _scale(ms, per) * ms.zero_point()
+    return R * _scale(ms, per, molar_mass) * ms.zero_point()
 
 
-def thermo(source, temperatures, *, per: str = "formula") -> pd.DataFrame:
+def thermo(source, temperatures, *, per: str = "formula", molar_mass: float | None = None) -> pd.DataFrame:
     """The thermodynamic table of a source.
 
     Parameters
     ----------
     source : Spectrum, component or mixture
     temperatures : array_like — T in K, ≥ 0
-    per : {"formula", "atom"} — per mole of formula units or of atoms
+    per : {"formula", "atom", "gram"} — per mole of formula units, per mole of atoms, or per
+        gram (J/(g K) and J/g)
+    molar_mass : float, optional — g/mol of formula units, for ``per="gram"``
 
     Returns
     -------
     pandas.DataFrame
         Columns ``T`` [K], ``Cv`` [J/(mol K)], ``S`` [J/(mol K)], ``U`` [J/mol],
-        ``F`` [J/mol] (both with zero point) and ``theta_D`` [K], the effective Debye
+        ``F`` [J/mol] (both with zero point; per gram: J/(g K), J/g) and ``theta_D`` [K], the effective Debye
         temperature of the lattice (vibrational) C_v.  ``attrs`` holds the units, the
         basis, the source's name, the zero-point energy and the caution.
     """
-    ms, T, r, k = _evaluate(source, temperatures, per)
+    ms, T, r, k = _evaluate(source, temperatures, per, molar_mass)
     theta = _lattice_theta(ms, T, r["cv_lattice"])
     frame = pd.DataFrame(
         {"T": T, "Cv": k * r["cv"], "S": k * r["s"], "U": k * r["u"], "F": k * r["f"], "theta_D": theta}
     )
+    amount = "g" if per == "gram" else "mol"
     frame.attrs.update(
-        units={"T": "K", "Cv": "J/(mol K)", "S": "J/(mol K)", "U": "J/mol", "F": "J/mol", "theta_D": "K"},
+        units={"T": "K", "Cv": f"J/({amount} K)", "S": f"J/({amount} K)", "U": f"J/{amount}", "F": f"J/{amount}", "theta_D": "K"},
         per=per,
+        basis=basis_text(per, ms.atoms, molar_mass),
         atoms=ms.atoms,
+        molar_mass=molar_mass,
         source=getattr(source, "name", None),
-        zero_point_energy=R * _scale(ms, per) * ms.zero_point(),
+        zero_point_energy=k * ms.zero_point(),
         caution=CAUTION,
     )
     return frame

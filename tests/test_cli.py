@@ -60,6 +60,9 @@ def test_help_exits_0(capsys):
         ["table", "x.txt", "--jobs", "0"],
         ["table", "x.txt", "--columns", "0"],
         ["table", "x.txt", "--low-t", "warm"],
+        ["table", "x.txt", "--per", "gram"],
+        ["table", "x.txt", "--molar-mass", "60"],
+        ["table", "x.txt", "--per", "gram", "--molar-mass", "-1"],
         ["table", "x.txt", "--low-t", "-300"],
         ["table", "x.txt", "--low-t-cutoff", "0"],
         ["frobnicate"],
@@ -123,6 +126,22 @@ def test_csv_output_carries_caution_units_and_basis(tmp_path, capsys):
     # The CSV keeps 12 significant digits.
     np.testing.assert_allclose(table.to_numpy(), expected.to_numpy(), rtol=1e-11)
     assert not [p for p in tmp_path.iterdir() if p.name != "table.csv"], "no temporary file left"
+
+
+def test_per_gram_table(tmp_path, capsys):
+    out = tmp_path / "table.csv"
+    args = ["table", str(GOOD), "--temperatures", "10,300", "--atoms", "2", "--per", "gram", "--molar-mass", "80",
+            "-o", str(out)]
+    assert main(args) == 0
+    capsys.readouterr()
+    text = out.read_text(encoding="utf-8")
+    assert "# units: T [K]; Cv [J/(g K)]; S [J/(g K)]; U [J/g]; F [J/g]; theta_D [K]" in text
+    assert "per gram (molar mass 80 g/mol" in text
+    table = pd.read_csv(out, comment="#")
+    molar = thermo(read_spectrum(GOOD, atoms=2), [10.0, 300.0])
+    # common practice: per gram = per mole of formula units / molar mass
+    np.testing.assert_allclose(table["Cv"], molar["Cv"] / 80.0, rtol=1e-11)
+    np.testing.assert_allclose(table["theta_D"], molar["theta_D"], rtol=1e-11)
 
 
 def test_low_temperature_continuation_options(tmp_path, capsys):

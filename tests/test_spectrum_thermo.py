@@ -330,7 +330,22 @@ def test_bad_temperatures():
     with pytest.raises(InputError, match="temperature"):
         thermo(sp, [np.nan])
     with pytest.raises(InputError, match="per"):
+        thermo(sp, [10.0], per="kilogram")
+    with pytest.raises(InputError, match="molar_mass"):
         thermo(sp, [10.0], per="gram")
+    with pytest.raises(InputError, match="molar_mass"):
+        thermo(sp, [10.0], molar_mass=50.0)
+
+
+def test_per_gram():
+    sp = debye_spectrum(50, atoms=2)
+    T = [10.0, 300.0]
+    g, f = thermo(sp, T, per="gram", molar_mass=62.5), thermo(sp, T)
+    # common practice: per gram = per mole of formula units / (g/mol)
+    for col in ("Cv", "S", "U", "F"):
+        assert np.allclose(g[col] * 62.5, f[col], rtol=1e-14)
+    assert g.attrs["units"]["Cv"] == "J/(g K)" and g.attrs["units"]["U"] == "J/g"
+    assert zero_point_energy(sp, per="gram", molar_mass=62.5) == pytest.approx(f.attrs["zero_point_energy"] / 62.5)
 
 
 # --- properties ------------------------------------------------------------------------
