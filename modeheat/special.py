@@ -290,7 +290,8 @@ def debye_cv_inverse(c, dim: int = 3, *, newton_steps: int = 0):
     )
     x = np.exp(lnx)
     low = y < yt[0]
-    x[low] = (n * (n + 1) * _full_integral(n) / cc[low]) ** (1.0 / n)
+    # in logs: c may be so small (subnormal) that the quotient would overflow
+    x[low] = np.exp((math.log(n * (n + 1) * _full_integral(n)) - np.log(cc[low])) / n)
     high = y > yt[-1]
     if np.any(high):
         # 1 − C_v = a x² − b x⁴ with a = −c_1, b = c_2 (series coefficients)

@@ -277,3 +277,10 @@ def test_no_runtime_warnings_at_the_edges():
                 back = special.debye_cv_inverse(c, dim)
                 assert np.isnan(back[0]) and np.isnan(back[1])  # c = 1 and c = 0
                 assert back[2] == pytest.approx(1e4, rel=1e-9)
+
+
+def test_inverse_of_subnormal_heat_capacity_is_finite():
+    # common practice: C_v/k ≈ (4π⁴/5)/x³ far below θ; a subnormal C must not overflow
+    x = special.debye_cv_inverse(np.array([5e-324, 1e-310, 1e-300]))
+    assert np.all(np.isfinite(x))
+    assert x[2] == pytest.approx((4 * math.pi**4 / 5 / 1e-300) ** (1 / 3), rel=1e-12)
