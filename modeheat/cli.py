@@ -91,12 +91,14 @@ def _temperature(text: str, spec: str) -> float:
 
 # --- argument types ------------------------------------------------------------------------
 def _low_t_arg(text: str) -> str | float:
-    if text in ("fit", "off"):
+    if text in ("fit", "extrapolate", "off"):
         return text
     try:
         value = float(text)
     except ValueError:
-        raise argparse.ArgumentTypeError(f"expected 'fit', 'off' or a Debye temperature in K, not {text!r}") from None
+        raise argparse.ArgumentTypeError(
+            f"expected 'fit', 'extrapolate', 'off' or a Debye temperature in K, not {text!r}"
+        ) from None
     if not (np.isfinite(value) and value > 0):
         raise argparse.ArgumentTypeError(f"a Debye temperature must be positive, not {text!r}")
     return value
@@ -237,10 +239,11 @@ def build_parser() -> argparse.ArgumentParser:
         "--low-t",
         type=_low_t_arg,
         default="fit",
-        metavar="fit|off|THETA",
+        metavar="fit|extrapolate|off|THETA",
         help="low-temperature continuation below what the grid resolves: 'fit' (default, an ω² "
-        "branch with the spectrum's own lowest mode count), 'off', or a Debye temperature "
-        "θ_D(0) in K (e.g. from elastic constants; best for coarse q-mesh spectra)",
+        "branch with the spectrum's own lowest mode count), 'extrapolate' (a·ω² from a fit of "
+        "aω²+bω⁴ to the lowest 2%% of the modes, for q-mesh spectra that undercount their "
+        "lowest shells), 'off', or a Debye temperature θ_D(0) in K (e.g. from elastic constants)",
     )
     table.add_argument(
         "--low-t-cutoff",

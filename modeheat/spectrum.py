@@ -15,7 +15,11 @@ the lowest frequencies, and they alone decide C_v at low T.  By default
 the same number of modes, so C_v follows the T³ law with the coefficient of the
 spectrum's own low-frequency part.  ``low_t=θ`` (a float, K) sets the branch from a
 Debye temperature instead (see :func:`debye_temperature_from_sound` for one from sound
-velocities), and ``low_t="off"`` uses the data as they are.  The default ω_c is the
+velocities).  For a sampled spectrum, ``low_t="extrapolate"`` fits g = a·ω² + b·ω⁴ to
+the lowest 2 % of the modes (least squares in g, so the poorly resolved lowest points
+weigh little) and continues with a·ω² below the point where the data start to follow
+that fit — the choice for a q-mesh DOS whose lowest shells are undercounted.
+``low_t="off"`` uses the data as they are.  The default ω_c is the
 third sampled point above the first one with positive density (what the grid
 resolves); for a list of N modes it is the frequency of the max(20, N/10⁴)-th lowest
 mode, and below 200 modes there is no continuation.
@@ -180,8 +184,8 @@ class Spectrum:
     partials : mapping of str to array_like, optional — partial densities (per species)
         on the same grid, in the same normalisation as `density`
     name : str, optional
-    low_t : "fit", "off" or float — low-temperature continuation (module docstring);
-        a float is a Debye temperature in K
+    low_t : "fit", "extrapolate", "off" or float — low-temperature continuation (module
+        docstring); a float is a Debye temperature in K
     low_t_cutoff : float, optional — the continuation's cut-off frequency in `unit`
 
     Raises
@@ -320,6 +324,8 @@ class Spectrum:
         unit = check_unit(unit)
         atoms = _check_atoms(atoms)
         low_t = _check_low_t(low_t)
+        if low_t == "extrapolate":
+            raise InputError("low_t='extrapolate' works on sampled spectra; use 'fit' or a Debye temperature")
         who = _label(name)
         f = _vector("frequencies", frequencies)
         w = np.ones_like(f) if weights is None else _vector("weights", weights)
@@ -407,6 +413,8 @@ class Spectrum:
         unit = check_unit(unit)
         atoms = _check_atoms(atoms)
         low_t = _check_low_t(low_t)
+        if low_t == "extrapolate":
+            raise InputError("low_t='extrapolate' works on sampled spectra; use 'fit' or a Debye temperature")
         who = _label(name)
         e = _vector("edges", edges)
         c = _vector("counts", counts)
@@ -590,9 +598,9 @@ def _readonly(a: np.ndarray) -> np.ndarray:
 
 def _check_low_t(low_t):
     if isinstance(low_t, str):
-        if low_t in ("fit", "off"):
+        if low_t in ("fit", "off", "extrapolate"):
             return low_t
-        raise InputError(f"low_t must be 'fit', 'off' or a Debye temperature in K, not {low_t!r}")
+        raise InputError(f"low_t must be 'fit', 'extrapolate', 'off' or a Debye temperature in K, not {low_t!r}")
     try:
         value = float(low_t)
     except (TypeError, ValueError):
@@ -677,6 +685,8 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
             DebyeBranch(w1, m * scale, d) for m, d in ((g0 * w1, 1), (0.5 * (g1 - g0) * w1, 2)) if m != 0
         )
         return ModeSet(nodes, w * scale, branches=branches, atoms=atoms), scale, 0.0, fit_theta
+    if low_t == "extrapolate":
+        return _extrapolated_modeset(theta, g, atoms, cutoff, unit, ratio_form, positive)
     nodes, w = _interval_nodes(theta, g, wc, ratio_form)
     if low_t == "fit":
         if below <= 0:
@@ -695,6 +705,49 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
         scale = (3.0 * atoms - n_c) / float(w.sum())
     branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()
     return ModeSet(nodes, w * scale, branches=branches, atoms=atoms), scale, wc, fit_theta
+
+
+_EXTRAPOLATE_FRACTION = 0.02  # the fit window holds the lowest 2 % of the modes
+_EXTRAPOLATE_AGREE = 0.05  # data above ω_c follow the fitted g/ω² within 5 %
+
+
+def _extrapolated_modeset(theta, g, atoms, cutoff, unit, ratio_form, positive):
+    """The ω² branch extrapolated from the resolved low-frequency part.
+
+    g = a·ω² + b·ω⁴ is fitted by least squares in g over the lowest 2 % of the modes, so
+    the poorly resolved lowest points (small g) weigh little; a is the T → 0 coefficient.
+    The branch replaces the data below ω_c, the lowest point from which every point of
+    the window follows the fit within 5 % (or `cutoff`).
+    """
+    counts = np.concatenate(([0.0], np.cumsum(0.5 * (g[1:] + g[:-1]) * np.diff(theta))))
+    first = int(positive[0])
+    i_hi = max(int(np.searchsorted(counts, _EXTRAPOLATE_FRACTION * counts[-1])), first + 8)
+    idx = np.arange(max(first, 1), min(i_hi, theta.size - 1) + 1)
+    idx = idx[theta[idx] > 0]
+    if idx.size < 4:
+        raise InputError("low_t='extrapolate' needs at least 4 sampled points in the lowest 2 % of the modes")
+    t = theta[idx]
+    (a, b), *_ = np.linalg.lstsq(np.column_stack([t**2, t**4]), g[idx], rcond=None)
+    if not a > 0:
+        raise InputError(
+            "low_t='extrapolate': the low-frequency density does not extrapolate to a positive ω² "
+            "coefficient; pass low_t=θ_D(0) instead"
+        )
+    if cutoff is None:
+        model = a + b * t**2
+        off = np.abs(g[idx] / t**2 - model) > _EXTRAPOLATE_AGREE * np.abs(model)
+        j = int(np.flatnonzero(off)[-1]) + 1 if off.any() else 0
+        wc = float(t[min(j, t.size - 1)])
+    else:
+        wc = float(cutoff) * kelvin_per(unit)
+        if not (math.isfinite(wc) and 0 < wc < theta[-1]):
+            raise InputError(f"low_t_cutoff must lie inside the frequency grid, not {cutoff!r}")
+    nodes, w = _interval_nodes(theta, g, wc, ratio_form)
+    n_c_raw = a * wc**3 / 3.0
+    scale = 3.0 * atoms / (float(w.sum()) + n_c_raw)
+    n_c = n_c_raw * scale
+    fit_theta = wc * (3.0 * atoms / n_c) ** (1.0 / 3.0)
+    return ModeSet(nodes, w * scale, branches=(DebyeBranch(wc, n_c),), atoms=atoms), scale, wc, fit_theta
 
 
 def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
