@@ -110,6 +110,17 @@ def _vector(name: str, values) -> np.ndarray:
     return a
 
 
+def _partial_vectors(partials, label: str, size: int, against: str) -> dict[str, np.ndarray]:
+    """Validated per-species arrays, each as long as the `against` array."""
+    parts = {}
+    for key, values in (partials or {}).items():
+        p = _vector(f"{label} {key!r}", values)
+        if p.size != size:
+            raise InputError(f"{label} {key!r} has {p.size} values but {against} has {size}")
+        parts[str(key)] = p
+    return parts
+
+
 def _check_atoms(atoms) -> float:
     try:
         a = float(atoms)
@@ -230,12 +241,7 @@ class Spectrum:
         g = _vector("density", density)
         if g.shape != f.shape:
             raise InputError(f"density has {g.size} values but frequency has {f.size}")
-        parts = {}
-        for key, values in (partials or {}).items():
-            p = _vector(f"partial density {key!r}", values)
-            if p.shape != f.shape:
-                raise InputError(f"partial density {key!r} has {p.size} values but frequency has {f.size}")
-            parts[str(key)] = p
+        parts = _partial_vectors(partials, "partial density", f.size, "frequency")
         if f.size < 2:
             raise InputError(f"a sampled spectrum needs at least 2 points, got {f.size}")
 
@@ -334,12 +340,7 @@ class Spectrum:
         neg_w = np.flatnonzero(w < 0)
         if neg_w.size:
             raise InputError(f"weight {w[neg_w[0]]!r} is negative", index=int(neg_w[0]))
-        parts = {}
-        for key, values in (partials or {}).items():
-            p = _vector(f"partial weights {key!r}", values)
-            if p.shape != f.shape:
-                raise InputError(f"partial weights {key!r} has {p.size} values but frequencies has {f.size}")
-            parts[str(key)] = p
+        parts = _partial_vectors(partials, "partial weights", f.size, "frequencies")
         if f.size == 0 or not np.any(w > 0):
             raise InputError("no modes given")
         imag = f < 0
@@ -423,12 +424,7 @@ class Spectrum:
         step = np.flatnonzero(np.diff(e) <= 0)
         if step.size:
             raise InputError("bin edges must increase strictly", index=int(step[0]) + 1)
-        parts = {}
-        for key, values in (partials or {}).items():
-            p = _vector(f"partial counts {key!r}", values)
-            if p.shape != c.shape:
-                raise InputError(f"partial counts {key!r} has {p.size} values but counts has {c.size}")
-            parts[str(key)] = p
+        parts = _partial_vectors(partials, "partial counts", c.size, "counts")
         order = np.arange(c.size)
         c = _clip_noise("counts", c, who, order)
         parts = {k: _clip_noise(f"partial counts {k!r}", v, who, order) for k, v in parts.items()}
