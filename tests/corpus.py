@@ -55,3 +55,12 @@ CP_CASES = read_manifest(BAD_CP)
 def cases(outcome: str, manifest: tuple[Case, ...] = CASES) -> list[Case]:
     """The cases of `manifest` (by default the spectrum corpus) with this outcome."""
     return [case for case in manifest if case.outcome == outcome]
+
+
+def check_manifest(folder: Path, manifest: tuple[Case, ...]) -> None:
+    """The manifest lists every corpus file in `folder` exactly once, and holds ≥ 20."""
+    listed = [case.file for case in manifest]
+    present = sorted(p.name for p in folder.iterdir() if p.name != "README.md")
+    assert sorted(listed) == present
+    assert len(set(listed)) == len(listed)
+    assert len(listed) >= 20
