@@ -1062,8 +1062,11 @@ class DebyeBreakdown:
     t3_below : float — in K: below it C/T³ stays within `tolerance` of its T → 0 limit
         (the T³ law holds); NaN if it does not hold even at the lowest temperature
     theta_range : tuple of float — (low, high) in K: θ_D(T) stays within `tolerance` of
-        θ_D(0) from `low` up to `high`; high = inf when it never leaves over the
-        temperatures examined, (NaN, NaN) when it is outside already at the lowest
+        θ_D(0) from `low`, the lowest temperature examined, up to `high`; high = inf
+        when it never leaves over the temperatures examined, (NaN, NaN) when it is
+        outside already at the lowest
+    t3_range : tuple of float — (lowest temperature examined, t3_below) in K, the
+        range of the T³ law in the same form; (NaN, NaN) when it does not hold there
     examined : tuple of float — lowest and highest temperature looked at, K
     gamma_subtracted : float or None — the electronic γ in J/(mol K²) removed from
         measured data before the analysis (None for spectra and models, whose lattice
@@ -1081,6 +1084,54 @@ class DebyeBreakdown:
     gamma_subtracted: float | None
     notes: tuple
     table: pd.DataFrame
+
+    @property
+    def t3_range(self) -> tuple:
+        return (math.nan, math.nan) if math.isnan(self.t3_below) else (self.examined[0], self.t3_below)
+
+    def __repr__(self) -> str:
+        def span(r):
+            if math.isnan(r[0]):
+                return "none"
+            return f"{r[0]:.3g} K–∞" if math.isinf(r[1]) else f"{r[0]:.3g}–{r[1]:.3g} K"
+
+        return (
+            f"<DebyeBreakdown θ_D(0) = {self.theta_D0:.4g} K, tolerance {100 * self.tolerance:g} %: "
+            f"T³ law {span(self.t3_range)}, constant θ_D {span(self.theta_range)} "
+            f"(examined {self.examined[0]:.3g}–{self.examined[1]:.3g} K)>"
+        )
+
+    def report(self) -> str:
+        """A plain-text summary: both ranges, where and how each law fails, the notes and the caution."""
+        tol = f"{100 * self.tolerance:g} %"
+        lo, hi = self.examined
+        lines = [
+            f"Debye breakdown: θ_D(0) = {self.theta_D0:.5g} K, tolerance {tol}, "
+            f"{len(self.table)} temperatures examined from {lo:.4g} K to {hi:.4g} K",
+            f"T³ law (C/T³ within {tol} of its T → 0 limit): " + self._range_text(self.t3_range, "C_T3_ratio", 1.0),
+            f"constant θ_D (θ_D(T) within {tol} of θ_D(0)): "
+            + self._range_text(self.theta_range, "theta_D", self.theta_D0),
+        ]
+        lines += [f"note: {note}" for note in self.notes]
+        lines.append(f"caution: {CAUTION}")
+        return "\n".join(lines)
+
+    def _range_text(self, span: tuple, column: str, reference: float) -> str:
+        """Where a law holds and how it fails just above that: the first table value past the end."""
+        lo, end = span
+        if math.isnan(lo):
+            return f"does not hold even at the lowest temperature examined, {self.examined[0]:.4g} K"
+        if math.isinf(end):
+            return f"holds from {lo:.4g} K through the highest temperature examined, {self.examined[1]:.4g} K"
+        text = f"holds from {lo:.4g} K to {end:.4g} K"
+        past = self.table.loc[self.table["T"] > end, column]
+        if past.empty:
+            return text
+        value = float(past.iloc[0])
+        quantity = "C/T³" if column == "C_T3_ratio" else "θ_D(T)"
+        if math.isnan(value):
+            return text + "; above it no θ_D(T) exists (C − γT ≤ 0 or ≥ 3·atoms·R)"
+        return text + f"; above it {quantity} {'rises above' if value > reference else 'falls below'} its T → 0 limit"
 
 
 def debye_breakdown(
@@ -1208,7 +1259,7 @@ def _breakdown_of_model(source, ms: ModeSet, tolerance: float, temperatures) -> 
     t3 = _crossing(lambda t: abs(ratio(t)[0] - 1.0) - tolerance, T, np.abs(rat - 1.0) <= tolerance)
     inside = np.abs(theta / theta0 - 1.0) <= tolerance
     hi = _crossing(lambda t: abs(theta_of(t)[0] / theta0 - 1.0) - tolerance, T, inside)
-    theta_range = (0.0, hi) if not math.isnan(hi) else (math.nan, math.nan)
+    theta_range = (float(T[0]), hi) if not math.isnan(hi) else (math.nan, math.nan)
     table = pd.DataFrame({"T": T, "theta_D": theta, "C_T3_ratio": rat})
     return DebyeBreakdown(
         tolerance, float(theta0), t3, theta_range, (float(T[0]), float(T[-1])), None, tuple(notes), table

@@ -18,7 +18,7 @@ import pandas as pd
 import pytest
 from scipy.optimize import brentq
 
-from modeheat import Debye, Einstein, Electronic, heat_capacity, solid, special
+from modeheat import CAUTION, Debye, Einstein, Electronic, heat_capacity, solid, special
 from modeheat.data import cp_from_cv
 from modeheat.errors import InputError
 from modeheat.fitting import debye_breakdown, low_temperature_fit
@@ -39,7 +39,9 @@ def test_pure_debye_t3_law_and_constant_theta(tolerance):
     expected = _debye_t3_temperature(300.0, tolerance)
     assert math.isclose(result.t3_below, expected, rel_tol=1e-9)
     # a Debye solid's θ_D(T) is its θ at every T (definition): the range is everything
-    assert result.theta_range == (0.0, math.inf)
+    # examined, and both ranges start at the first temperature examined
+    assert result.theta_range == (result.examined[0], math.inf)
+    assert result.t3_range == (result.examined[0], result.t3_below)
     assert math.isclose(result.theta_D0, 300.0, rel_tol=1e-12)
     assert result.gamma_subtracted is None
 
@@ -66,7 +68,7 @@ def test_an_einstein_mode_ends_the_t3_law_earlier():
     # (12π⁴/5)·atoms·R/θ_D(0)³ = the branch's T³ coefficient): θ_D(0) = θ·2^(1/3)
     assert math.isclose(mixed.theta_D0, theta_d * 2 ** (1 / 3), rel_tol=1e-12)
     low, high = mixed.theta_range
-    assert low == 0.0 and high < 2 * t
+    assert low == mixed.examined[0] == mixed.table["T"].iloc[0] and high < 2 * t
     # at the end of the range the lattice C is that of a Debye solid with θ_D(0)·(1 ± 1 %)
     c_high = 3 * special.debye_cv(theta_d / high) + 3 * special.einstein_cv(theta_e / high)
     candidates = [6 * special.debye_cv(mixed.theta_D0 * (1 + s * 0.01) / high) for s in (-1, 1)]
@@ -85,7 +87,7 @@ def test_a_rendered_spectrum_agrees_with_its_model():
     spectrum = Debye(300.0).spectrum()
     result = debye_breakdown(spectrum)
     assert math.isclose(result.t3_below, _debye_t3_temperature(300.0, 0.01), rel_tol=1e-4)
-    assert result.theta_range == (0.0, math.inf)
+    assert result.theta_range == (result.examined[0], math.inf)
     assert list(result.table.columns) == ["T", "theta_D", "C_T3_ratio"]
 
 
@@ -155,3 +157,49 @@ def test_breakdown_errors():
         debye_breakdown(Debye(300.0), gamma=1e-3)
     with pytest.raises(InputError, match="needs a Spectrum"):
         debye_breakdown([1, 2, 3])
+
+
+# --- report and repr ------------------------------------------------------------------------------------
+def test_ranges_start_at_the_first_temperature_examined():
+    # given temperatures: the first one is where a range that holds there starts
+    result = debye_breakdown(Debye(300.0), temperatures=np.geomspace(2.0, 600.0, 50))
+    assert result.examined[0] == 2.0
+    assert result.t3_range[0] == 2.0 and result.theta_range[0] == 2.0
+    assert "holds from 2 K to" in result.report()
+    # no T³ law at all: both ranges are (NaN, NaN), in words "does not hold"
+    layer = debye_breakdown(Debye(300.0, dim=2))
+    assert all(math.isnan(v) for v in layer.t3_range + layer.theta_range)
+    assert "does not hold even at the lowest temperature examined" in layer.report()
+
+
+def test_report_says_where_and_how_each_law_fails():
+    mixed = debye_breakdown(solid(2, Debye(300.0), [Einstein(150.0)]))
+    text = mixed.report()
+    lo = mixed.examined[0]
+    assert f"holds from {lo:.4g} K to {mixed.t3_below:.4g} K" in text
+    assert f"holds from {lo:.4g} K to {mixed.theta_range[1]:.4g} K" in text
+    # reference: closed forms, as in test_an_einstein_mode_ends_the_t3_law_earlier: the
+    # Einstein modes add to the Debye T³ term, so C/T³ leaves its limit upwards and the
+    # effective θ_D falls (a larger C is a lower Debye temperature)
+    assert "above it C/T³ rises above its T → 0 limit" in text
+    assert "above it θ_D(T) falls below its T → 0 limit" in text
+    assert "tolerance 1 %" in text and "θ_D(0) = 377.98 K" in text  # 300·2^(1/3) K (common practice, as above)
+    assert "note: lattice (vibrational) C_v" in text and text.endswith(CAUTION)
+    pure = debye_breakdown(Debye(300.0)).report()
+    # reference: closed form: x³·D(x) rises monotonically to 4π⁴/5 (special.debye_cv), so
+    # C/T³ of a pure Debye solid leaves its limit downwards; θ_D never leaves
+    assert "above it C/T³ falls below its T → 0 limit" in pure
+    assert "through the highest temperature examined, 900 K" in pure  # 3 × θ, the default grid's end
+
+
+def test_report_of_measured_data_names_the_subtracted_gamma():
+    result = debye_breakdown(_model_data(), tmax=6.0)
+    text = result.report()
+    assert "holds from 1 K to" in text and "electronic γT subtracted first" in text
+
+
+def test_repr_is_short_and_never_a_table():
+    for result in (debye_breakdown(Debye(300.0)), debye_breakdown(_model_data(), tmax=6.0)):
+        text = repr(result)
+        assert len(text) < 200 and "\n" not in text and "C_T3_ratio" not in text
+        assert text.startswith("<DebyeBreakdown θ_D(0) = 300 K, tolerance 1 %: T³ law ")
