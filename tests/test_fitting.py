@@ -20,18 +20,21 @@ they recover known parameters and test that the standard errors are right.
 
 from __future__ import annotations
 
+import itertools
 import math
 import warnings
 
 import numpy as np
+import mpmath
 import pandas as pd
 import pytest
 from reference import janaf_table
+from scipy import stats
 
 from modeheat import CAUTION, Debye, Einstein, Electronic, Mixture, heat_capacity
 from modeheat.data import cp_from_cv, nernst_lindemann_coefficient
 from modeheat.errors import InputError
-from modeheat.fitting import FitWarning, fit, low_temperature_fit
+from modeheat.fitting import FitWarning, _runs_test, fit, low_temperature_fit
 from modeheat.models import Dilatation
 from modeheat.units import R
 
@@ -361,3 +364,145 @@ def test_undetermined_parameter_is_flagged():
         r = fit(model, data, vary=["debye.modes", "debye_2.modes"])
     assert any(issubclass(w.category, FitWarning) for w in record)
     assert math.isinf(r.stderr["debye.modes"])
+
+
+# --- fit quality: the χ²_red band and the runs test ---------------------------------------------------------
+def _debye_cv_mpmath(theta: float, temperatures: np.ndarray) -> np.ndarray:
+    # reference: mpmath quadrature (20 digits) of the Debye integral,
+    # C_v = 9R (T/θ)³ ∫₀^{θ/T} x⁴eˣ/(eˣ − 1)² dx for 3 modes (common practice)
+    mpmath.mp.dps = 20
+    out = []
+    for t in temperatures:
+        x = mpmath.mpf(theta) / mpmath.mpf(float(t))
+        integral = mpmath.quad(lambda u: u**4 * mpmath.exp(u) / mpmath.expm1(u) ** 2, [0, x])
+        out.append(float(9 * R * integral / x**3))
+    return np.array(out)
+
+
+T_QUALITY = np.geomspace(2.0, 150.0, 40)
+
+
+@pytest.fixture(scope="module")
+def debye_data():
+    # Debye C_v from mpmath (above) with seeded Gaussian noise of known σ = 1 % (invented test data)
+    c = _debye_cv_mpmath(320.0, T_QUALITY)
+    sigma = 0.01 * c
+    rng = np.random.default_rng(20240610)
+    return pd.DataFrame({"T": T_QUALITY, "C": c + sigma * rng.standard_normal(c.size), "sigma": sigma})
+
+
+def _runs_brute_force(n_pos: int, n_neg: int, observed: int) -> tuple[float, float]:
+    # reference: the definition, by enumerating every arrangement of the signs (equally likely)
+    n = n_pos + n_neg
+    counts = []
+    for where in itertools.combinations(range(n), n_pos):
+        s = np.zeros(n, dtype=bool)
+        s[list(where)] = True
+        counts.append(1 + int(np.count_nonzero(s[1:] != s[:-1])))
+    counts = np.array(counts)
+    return float(np.mean(counts <= observed)), float(np.mean(counts))
+
+
+def test_runs_test_against_hand_counts_and_enumeration():
+    # Wald & Wolfowitz (1940) runs test; the exact distribution of the number of runs
+    # (Swed & Eisenhart 1943). By hand: ++++−−−− has 2 runs, and 2 of the C(8,4) = 70
+    # arrangements of four + and four − have 2 runs.
+    runs, expected, p = _runs_test(np.array([1, 1, 1, 1, 0, 0, 0, 0], bool))
+    assert runs == 2 and expected == 5.0 and math.isclose(p, 2 / 70, rel_tol=1e-12)
+    # ++−−++−−: 4 runs; by hand P(R=2) = 2/70, P(R=3) = (3 + 3)/70, P(R=4) = 2·3·3/70
+    runs, _, p = _runs_test(np.array([1, 1, 0, 0, 1, 1, 0, 0], bool))
+    assert runs == 4 and math.isclose(p, 26 / 70, rel_tol=1e-12)
+    signs = np.array([1, 1, 1, 0, 1, 0, 0, 0, 0, 1, 1, 0, 0, 0], bool)  # 6 +, 8 −, 6 runs
+    runs, expected, p = _runs_test(signs)
+    brute_p, brute_mean = _runs_brute_force(6, 8, runs)
+    assert runs == 6 and math.isclose(p, brute_p, rel_tol=1e-12)
+    assert math.isclose(expected, brute_mean, rel_tol=1e-12)  # 1 + 2·n₊·n₋/n (Wald & Wolfowitz 1940)
+    # one sign only: the chance that n fair signs agree, 0.5^(n−1) (common practice)
+    assert _runs_test(np.ones(5, bool))[2] == 0.5**4
+
+
+def test_runs_test_large_samples_follow_the_normal_approximation():
+    # Wald & Wolfowitz (1940): for large n the runs are normal with mean 1 + 2n₊n₋/n and
+    # variance 2n₊n₋(2n₊n₋ − n)/(n²(n − 1)).  With the continuity correction the tail
+    # probability agrees to 5 % relative at n = 400 (measured 1 % at p ≈ 1e-3; the
+    # normal approximation's own error in the tail, not a numerical one).
+    rng = np.random.default_rng(8)
+    signs = rng.random(400) < 0.4
+    signs[150:170] = True  # a block: fewer runs than random
+    runs, expected, p = _runs_test(signs)
+    n_pos = int(signs.sum())
+    n_neg = signs.size - n_pos
+    n = signs.size
+    var = 2 * n_pos * n_neg * (2 * n_pos * n_neg - n) / (n**2 * (n - 1))
+    normal = stats.norm.cdf((runs + 0.5 - expected) / math.sqrt(var))
+    assert 1e-4 < p < 1e-2 and abs(p / normal - 1) < 0.05
+
+
+def test_a_good_fit_reports_no_problem(debye_data):
+    result = fit(Debye(280.0), debye_data)
+    q = result.quality
+    assert q.verdict == "good" and q.problems == () and q.advice == ()
+    # the band is the central 99.8 % of χ²_ν/ν (scipy.stats.chi2, common practice)
+    nu = len(T_QUALITY) - 1
+    assert q.dof == result.dof == nu
+    assert q.chi2_red_range == pytest.approx((stats.chi2.ppf(1e-3, nu) / nu, stats.chi2.isf(1e-3, nu) / nu), rel=1e-12)
+    assert q.chi2_red_range[0] < q.chi2_red < q.chi2_red_range[1]
+    assert q.runs_p_value > 1e-3 and abs(q.lag1) < 0.5
+    text = result.report()
+    assert "fit quality: good" in text and "problem:" not in text and "try:" not in text
+    assert f"n − p = {nu}" in text and "runs test p =" in text
+
+
+def test_a_wrong_model_reports_a_poor_structured_fit(debye_data):
+    # Einstein modes have no T³ law: the misfit is systematic and largest at low T
+    result = fit(Einstein(200.0, modes=3.0), debye_data)
+    q = result.quality
+    assert q.verdict == "poor" and q.structured
+    assert q.chi2_red > q.chi2_red_range[1] and q.runs_p_value < 1e-3 and q.runs < q.runs_expected
+    assert q.lag1 > 0.5  # long runs of one sign: strongly positive lag-1 correlation
+    assert q.worst == "low-T end" and q.worst_range[0] == T_QUALITY[0]
+    text = result.report()
+    assert "fit quality: poor" in text and "the residuals are structured" in text
+    assert "largest at the low-T end" in text and "an acoustic Debye or SineChain branch" in text
+    assert "an Electronic term" in text
+    assert len(repr(result)) < 120 and "quality poor" in repr(result)
+
+
+def test_sigma_ten_times_too_large_says_chi2_far_below_one(debye_data):
+    result = fit(Debye(280.0), debye_data.assign(sigma=10 * debye_data["sigma"]))
+    q = result.quality
+    assert q.verdict == "sigma overestimated" and not q.structured
+    assert q.chi2_red < q.chi2_red_range[0] < 1
+    text = result.report()
+    assert "fit quality: sigma overestimated" in text and "is below" in text and "sigma is probably overestimated" in text
+
+
+def test_sigma_too_small_with_random_residuals_says_so(debye_data):
+    # σ a third of the noise: χ²_red ≈ 9, but the signs stay random
+    result = fit(Debye(280.0), debye_data.assign(sigma=debye_data["sigma"] / 3))
+    q = result.quality
+    assert q.verdict == "poor" and not q.structured
+    assert any("sigma may be underestimated (by about ×" in a for a in q.advice)
+
+
+def test_a_misfit_at_high_t_suggests_the_dilatation_term():
+    # C_p from the mpmath Debye C_v through Nernst & Lindemann (1911),
+    # C_p = 2C_v/(1 + √(1 − 4A·T·C_v)), written out here; σ = 0.2 % (invented test data)
+    T = np.geomspace(20.0, 500.0, 40)
+    cv = _debye_cv_mpmath(320.0, T)
+    cp = 2 * cv / (1 + np.sqrt(1 - 4 * 1e-5 * T * cv))
+    sigma = 0.002 * cp
+    data = pd.DataFrame({"T": T, "C": cp + sigma * np.random.default_rng(4).standard_normal(T.size), "sigma": sigma})
+    result = fit(Debye(300.0), data)
+    assert result.quality.verdict == "poor" and result.quality.worst == "high-T end"
+    assert any("a Dilatation component" in a for a in result.quality.advice)
+    assert any("a lower tmax" in a for a in result.quality.advice)
+
+
+def test_varied_mode_counts_count_as_one_parameter_fewer():
+    true = Mixture((Debye(250.0), Einstein(150.0, modes=2.0), Einstein(450.0, modes=1.0)), atoms=2)
+    T = np.geomspace(2.0, 400.0, 30)
+    data = pd.DataFrame({"T": T, "C": heat_capacity(true, T)})
+    r = fit(true, data, vary=["debye.theta", "einstein.modes", "einstein_2.modes"])
+    # two mode counts with a fixed total are one free parameter (stick-breaking)
+    assert r.dof == 30 - 2 and "n − p" not in r.report()  # unweighted: no χ² line
