@@ -10,7 +10,7 @@ from .data import (
     read_spectrum,
     write_table,
 )
-from .fitting import DebyeBreakdown, FitResult, FitWarning, LowTemperatureFit, debye_breakdown, fit, low_temperature_fit
+from .fitting import DebyeBreakdown, FitQuality, FitResult, FitWarning, LowTemperatureFit, debye_breakdown, fit, low_temperature_fit
 from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
 from .models import Band, Component, Debye, Dilatation, Einstein, Electronic, Mixture, ModeCountWarning, Schottky, SineChain, solid
 from .spectrum import ReducedDensity, Spectrum, debye_temperature_from_sound
@@ -30,6 +30,7 @@ __version__ = "0.1.0"
 __all__ = [
     "DebyeBreakdown",
     "Dilatation",
+    "FitQuality",
     "FitResult",
     "FitWarning",
     "HeatCapacityWarning",

@@ -7,7 +7,9 @@ units] and optionally ``sigma`` (the standard uncertainty of C, same unit), as
 - :func:`low_temperature_fit` — linear least squares of C/T = γ + βT² (+ δT⁴), the
   Sommerfeld coefficient γ and θ_D(0) from β;
 - :func:`fit` — non-linear least squares of any model component or mixture to C_p(T),
-  one data set or several at once, with standard errors and correlations;
+  one data set or several at once, with standard errors, correlations and a
+  :class:`FitQuality` (χ²_red against its χ² band, a runs test on the residual signs,
+  a verdict and advice);
 - :func:`debye_breakdown` — the temperature below which the T³ law holds and the
   range over which θ_D(T) stays at θ_D(0), for a spectrum, a model or measured data.
 
