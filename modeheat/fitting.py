@@ -190,6 +190,12 @@ class LowTemperatureFit:
         delta = 0.0 if math.isnan(self.delta) else self.delta
         return self.gamma * T + self.beta * T**3 + delta * T**5
 
+    def __repr__(self) -> str:
+        return (
+            f"<LowTemperatureFit γ = {self.gamma:.4g} J/(mol K²), θ_D(0) = {self.theta_D0:.5g} ± "
+            f"{self.theta_D0_stderr:.2g} K, {self.n_points} points {self.t_range[0]:g}–{self.t_range[1]:g} K>"
+        )
+
     def report(self) -> str:
         """A short text summary, with the caution."""
         lines = [

@@ -161,6 +161,7 @@ def test_low_t_recovers_gamma_and_beta_within_3_sigma():
     assert list(r.table.columns) == ["T", "T2", "C_over_T", "sigma_C_over_T", "fit"]
     np.testing.assert_allclose(r.table["T2"], T_LOW**2)
     assert CAUTION in r.report()
+    assert len(repr(r)) < 120 and "\n" not in repr(r) and repr(r).startswith("<LowTemperatureFit γ = ")
 
 
 def test_low_t_theta_from_a_debye_model():
