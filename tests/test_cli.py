@@ -294,3 +294,40 @@ def test_write_table_directly(tmp_path):
     with pytest.raises(InputError, match="no units or basis"):
         write_table(pd.DataFrame({"T": [1.0]}), tmp_path / "bare.csv")
     assert sorted(p.name for p in tmp_path.iterdir()) == ["t.csv"]
+
+
+# --- start-up: import what a command needs when it needs it ----------------------------------------
+_HEAVY = ("scipy.optimize", "pandas", "modeheat.fitting", "modeheat.lattice")
+
+
+def _modules_after(code: str) -> set[str]:
+    """The heavy modules in sys.modules after running `code` in a fresh interpreter."""
+    probe = f"{code}\nimport sys\nprint(' '.join(m for m in {_HEAVY!r} if m in sys.modules))"
+    done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True, cwd=ROOT, timeout=60)
+    assert done.returncode == 0, done.stderr
+    return set(done.stdout.split())
+
+
+def test_import_modeheat_loads_no_fitting_pandas_or_optimizer():
+    # A structural check, not a timing: the start-up time itself is in tests/benchmarks/bench_startup.py.
+    assert _modules_after("import modeheat") == set()
+    assert _modules_after("import modeheat; modeheat.Spectrum") == set()
+
+
+def test_help_loads_no_backend():
+    code = "import contextlib, io\nfrom modeheat.cli import main\nwith contextlib.redirect_stdout(io.StringIO()):\n    main(['table', '--help'])"
+    assert _modules_after(code) == set()
+
+
+def test_lazy_public_names():
+    import modeheat
+
+    assert set(modeheat.__all__) <= set(dir(modeheat))
+    for name in modeheat.__all__:
+        assert getattr(modeheat, name) is not None, name
+    # The submodule modeheat.thermo must not hide the function of the same name.
+    import modeheat.thermo  # noqa: F401
+
+    assert callable(modeheat.thermo) and modeheat.thermo.__module__ == "modeheat.thermo"
+    with pytest.raises(AttributeError, match="no attribute 'nonesuch'"):
+        modeheat.nonesuch
