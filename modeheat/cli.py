@@ -181,8 +181,8 @@ atoms per formula unit:
   Without --atoms each file has its own count, read from the file (see the
   file format: python -c "import modeheat.data; help(modeheat.data)") or, when
   the file gives none, taken from its density of states when that integrates
-  to within 1 % of 3 modes per atom; a file where neither works fails with a
-  message asking for --atoms.  --atoms N applies to every file of the batch.
+  to within 1 % of 3 modes per atom; a file where neither works fails, with
+  its own error line.  --atoms N applies to every file of the batch.
 
 output:
   The table goes to standard output; with -o it goes to that CSV file and
@@ -397,7 +397,7 @@ def _compute(job: _Job) -> _Outcome:
 def _located(message: str, path: str) -> str:
     """The message on one line, starting with the file it is about."""
     text = " ".join(message.split())
-    return text if text.startswith(path) else f"{path}: {text}"
+    return text if text.startswith((f"{path}:", f"{path},")) else f"{path}: {text}"
 
 
 def _internal(exc: BaseException, path: str) -> str:
