@@ -2,12 +2,21 @@
 
 ``modeheat table FILE...`` reads spectrum files (format: :mod:`modeheat.data`) and
 prints the thermodynamic table of each: C_v, S, U, F and the effective Debye
-temperature against T.  Several files make one table with a ``source`` column and
-are computed in parallel worker processes.
+temperature against T.  Each file has its own atom count (``--atoms`` sets one for
+all).  Several files make one table with ``source`` and ``atoms`` columns and the
+other per-file values (:mod:`modeheat.data`, "Table files"), computed in parallel
+worker processes.
 
-Exit status: 0 on success, 1 for bad input (one line ``modeheat: error: …`` on
-stderr per failing file, no traceback), 2 for bad usage.  Standard output carries
-only the table; warnings, the caution and progress go to standard error.
+A batch keeps what worked: every file that gives a table is written, and each file
+that does not gets one line ``modeheat: error: FILE…: problem`` on standard error,
+whatever went wrong — bad input, a table with non-finite values, a bug, or a worker
+process that died.  Exit status: 0 when every file gave a table, 1 when any failed or
+the output could not be written, 2 for bad usage.  Standard output carries only the
+table (with ``-o``, a one-line summary); warnings, the basis, the caution and
+progress go to standard error.
+
+The backend (numpy, pandas, scipy) is imported inside the command, so ``modeheat
+--help`` starts quickly.
 """
 
 from __future__ import annotations
@@ -19,17 +28,18 @@ import sys
 import warnings
 from collections.abc import Sequence
 from concurrent.futures import ProcessPoolExecutor, as_completed
+from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
-import numpy as np
-import pandas as pd
-
-from .data import read_spectrum, write_table
-from .errors import InputError, ModeheatError
-from .thermo import CAUTION, basis_text, thermo
+from .errors import InputError, ModeheatError, ModeheatWarning
 from .units import FREQUENCY_UNITS, check_unit
 
-__all__ = ["main", "build_parser", "parse_temperatures"]
+if TYPE_CHECKING:
+    import numpy as np
+    import pandas as pd
+
+__all__ = ["main", "build_parser", "parse_temperatures", "version"]
 
 #: The temperature grid used when --temperatures is not given.
 DEFAULT_TEMPERATURES = "10:1000:10"
@@ -58,6 +68,8 @@ def parse_temperatures(spec: str) -> np.ndarray:
     ValueError
         The specification is malformed; the message says how.
     """
+    import numpy as np
+
     text = spec.strip()
     if ":" in text:
         parts = text.split(":")
@@ -99,7 +111,7 @@ def _low_t_arg(text: str) -> str | float:
         raise argparse.ArgumentTypeError(
             f"expected 'fit', 'extrapolate', 'off' or a Debye temperature in K, not {text!r}"
         ) from None
-    if not (np.isfinite(value) and value > 0):
+    if not (math.isfinite(value) and value > 0):
         raise argparse.ArgumentTypeError(f"a Debye temperature must be positive, not {text!r}")
     return value
 
@@ -151,7 +163,10 @@ _TABLE_DESCRIPTION = """\
 Read spectrum files and print, at each temperature, C_v and S in J/(mol K),
 U and F in J/mol (zero-point energy included) and the effective Debye
 temperature theta_D in K.  Several files make one table, computed in
-parallel, whose first column 'source' holds each file as it was named."""
+parallel, whose first columns 'source' and 'atoms' hold each file as it was
+named and its atoms per formula unit, and whose last columns hold each file's
+zero-point energy and other per-file values.  Files that fail do not stop the
+others: their results are written and each failure is reported."""
 
 _TABLE_EPILOG = f"""\
 spectrum files:
@@ -162,16 +177,32 @@ spectrum files:
   A column named 'total' is the total density; otherwise the density columns
   are summed and each is a partial.
 
+atoms per formula unit:
+  Without --atoms each file has its own count, read from the file (see the
+  file format: python -c "import modeheat.data; help(modeheat.data)") or, when
+  the file gives none, taken from its density of states when that integrates
+  to within 1 % of 3 modes per atom; a file where neither works fails, with
+  its own error line.  --atoms N applies to every file of the batch.
+
 output:
-  The table goes to standard output.  Warnings, the basis and the caution go
-  to standard error, and so does a progress line for {_PROGRESS_FROM} or more files
-  when standard error is a terminal.  Exit status: 0 success, 1 bad input
-  (one error line per failing file), 2 bad usage.
+  The table goes to standard output; with -o it goes to that CSV file and
+  standard output gets one summary line (files, rows, where written,
+  failures).  Warnings, the basis and the caution go to standard error, and so
+  does a progress line for {_PROGRESS_FROM} or more files when standard error is a
+  terminal.  Every file that gives a table is written; each file that fails
+  (bad input, non-finite values, a crash) gets one line on standard error:
+    modeheat: error: FILE[, line N]: problem
+  -o refuses a folder, a device, a FIFO or a link, and never replaces an input
+  file; --overwrite replaces only an existing regular file.
+
+exit status:
+  0 every file gave a table; 1 some file failed (the others are still
+  written) or the output could not be written; 2 bad usage.
 
 examples:
   modeheat table spectrum.txt --unit THz --atoms 2
   modeheat table spectrum.txt --temperatures 1:300:1 -o table.csv
-  modeheat table a.txt b.txt c.txt --per atom --jobs 3"""
+  modeheat table a.txt b.txt c.txt --per atom --jobs 3 -o batch.csv"""
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -180,8 +211,12 @@ def build_parser() -> argparse.ArgumentParser:
         prog="modeheat",
         description="Heat capacity, entropy, energy, free energy and the effective Debye "
         "temperature from a phonon density of states.",
-        epilog="Exit status: 0 success, 1 bad input, 2 bad usage.  "
+        epilog="Exit status: 0 success; 1 bad input (with several files: any file failed, "
+        "the others' results are still written); 2 bad usage.  "
         "Run 'modeheat table --help' for the spectrum file format.",
+    )
+    parser.add_argument(
+        "--version", action=_VersionAction, help="print the version of modeheat and exit"
     )
     commands = parser.add_subparsers(title="commands", metavar="COMMAND")
     table = commands.add_parser(
@@ -199,7 +234,10 @@ def build_parser() -> argparse.ArgumentParser:
         "(needed when a file's header gives none; must agree with it otherwise)",
     )
     table.add_argument(
-        "--atoms", type=_positive_float, default=1.0, help="atoms per formula unit (default: 1)"
+        "--atoms",
+        type=_positive_float,
+        help="atoms per formula unit, for every file (default: each file's own count, "
+        "see below)",
     )
     table.add_argument(
         "--temperatures",
@@ -222,9 +260,13 @@ def build_parser() -> argparse.ArgumentParser:
         metavar="G_PER_MOL",
         help="molar mass in g/mol of formula units, for --per gram",
     )
-    table.add_argument("-o", "--output", metavar="OUT.csv", help="also write the table to this CSV file")
     table.add_argument(
-        "--overwrite", action="store_true", help="replace the output file if it exists (never an input file)"
+        "-o", "--output", metavar="OUT.csv", help="write the table to this CSV file instead of standard output"
+    )
+    table.add_argument(
+        "--overwrite",
+        action="store_true",
+        help="replace the output file if it is an existing regular file (never an input file)",
     )
     table.add_argument(
         "--columns",
@@ -262,6 +304,30 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+class _VersionAction(argparse.Action):
+    """``--version``: looks the version up only when asked, to keep start-up quick."""
+
+    def __init__(self, option_strings: Sequence[str], dest: str, help: str | None = None) -> None:
+        super().__init__(option_strings, dest, nargs=0, default=argparse.SUPPRESS, help=help)
+
+    def __call__(self, parser, namespace, values, option_string=None) -> None:
+        sys.stdout.write(f"modeheat {version()}\n")
+        parser.exit()
+
+
+def version() -> str:
+    """The installed version of modeheat, or the source tree's ``__version__`` when it is
+    not installed."""
+    from importlib import metadata
+
+    try:
+        return metadata.version("modeheat")
+    except metadata.PackageNotFoundError:
+        from . import __version__
+
+        return __version__
+
+
 def _check_table_args(args: argparse.Namespace) -> None:
     if (args.per == "gram") != (args.molar_mass is not None):
         args.usage.error("--per gram and --molar-mass go together")
@@ -272,7 +338,7 @@ def _check_table_args(args: argparse.Namespace) -> None:
 class _Job:
     path: str
     unit: str | None
-    atoms: float
+    atoms: float | None  # None: the file's own count
     columns: list | None
     total: str | None
     per: str
@@ -286,13 +352,23 @@ class _Job:
 class _Outcome:
     path: str
     frame: pd.DataFrame | None = None
-    error: str | None = None
+    error: str | None = None  # one line that starts with the file
     warnings: list[str] = field(default_factory=list)
 
 
 def _compute(job: _Job) -> _Outcome:
+    """The table of one file.  Never raises: every failure, a bug included, becomes the
+    outcome's error, so one file cannot cost the others their results."""
+    import numpy as np
+
+    from .data import read_spectrum
+    from .thermo import thermo
+
     outcome = _Outcome(job.path)
-    with warnings.catch_warnings(record=True) as caught:
+    # Floating-point noise (overflow in a term that then vanishes) is not the user's
+    # business; a value it spoiled is caught by the finiteness check below instead.
+    with warnings.catch_warnings(record=True) as caught, np.errstate(all="ignore"):
+        warnings.simplefilter("always", ModeheatWarning)
         try:
             spectrum = read_spectrum(
                 job.path,
@@ -303,30 +379,135 @@ def _compute(job: _Job) -> _Outcome:
                 low_t=job.low_t,
                 low_t_cutoff=job.low_t_cutoff,
             )
-            outcome.frame = thermo(spectrum, job.temperatures, per=job.per, molar_mass=job.molar_mass)
+            frame = thermo(spectrum, job.temperatures, per=job.per, molar_mass=job.molar_mass)
+            outcome.error = _not_finite(frame, job.path)
+            if outcome.error is None:
+                outcome.frame = frame
         except (ModeheatError, OSError) as exc:
-            outcome.error = str(exc)
-    outcome.warnings = [str(w.message) for w in caught]
+            outcome.error = _located(str(exc), job.path)
+        except Exception as exc:  # a bug: reported as this file's failure
+            outcome.error = _internal(exc, job.path)
+    if outcome.frame is not None:
+        messages = [_warning_text(w, job.path) for w in caught]
+        messages.append(_missing_theta(outcome.frame, job.path))
+        outcome.warnings = [m for m in dict.fromkeys(messages) if m]
     return outcome
 
 
+def _located(message: str, path: str) -> str:
+    """The message on one line, starting with the file it is about."""
+    text = " ".join(message.split())
+    return text if text.startswith((f"{path}:", f"{path},")) else f"{path}: {text}"
+
+
+def _internal(exc: BaseException, path: str) -> str:
+    return _located(
+        f"internal error while computing this file ({type(exc).__name__}: {exc}); "
+        "please report it with the file",
+        path,
+    )
+
+
+def _warning_text(caught: warnings.WarningMessage, path: str) -> str:
+    if issubclass(caught.category, ModeheatWarning):
+        return _located(str(caught.message), path)
+    return _located(
+        f"a library step reported {caught.category.__name__} '{caught.message}'; the table "
+        "was checked and is finite, but please report the file",
+        path,
+    )
+
+
+def _not_finite(frame: pd.DataFrame, path: str) -> str | None:
+    """Why the table must not be written, if some value is not finite.
+
+    A NaN Debye temperature is allowed: it is documented for heat capacities that
+    admit none (see :func:`_missing_theta`); ±inf there, and NaN or ±inf anywhere
+    else, are not.
+    """
+    import numpy as np
+
+    T = frame["T"].to_numpy(dtype=float)
+    problems = []
+    for column in frame.columns:
+        values = frame[column].to_numpy(dtype=float)
+        bad = ~np.isfinite(values)
+        if column == "theta_D":
+            bad &= ~np.isnan(values)
+        if bad.any():
+            first = int(np.flatnonzero(bad)[0])
+            more = int(bad.sum()) - 1
+            problems.append(
+                f"{column} is {values[first]} at T = {T[first]:g} K"
+                + (f" and at {more} other temperature(s)" if more else "")
+            )
+    if not problems:
+        return None
+    return f"{path}: not written: the table has non-finite values: " + "; ".join(problems)
+
+
+def _missing_theta(frame: pd.DataFrame, path: str) -> str | None:
+    """A warning for Debye temperatures written as nan, so that none is silent."""
+    import numpy as np
+
+    missing = np.isnan(frame["theta_D"].to_numpy(dtype=float))
+    if not missing.any():
+        return None
+    first = frame["T"].to_numpy(dtype=float)[missing][0]
+    return (
+        f"{path}: no effective Debye temperature exists at {int(missing.sum())} of {missing.size} "
+        f"temperature(s) (the first at T = {first:g} K): written as nan"
+    )
+
+
 def _compute_all(jobs: list[_Job], workers: int, progress: bool) -> list[_Outcome]:
+    done = 0
+
+    def finished(outcome: _Outcome) -> _Outcome:
+        nonlocal done
+        done += 1
+        if progress:
+            _progress(done, len(jobs), outcome.path)
+        return outcome
+
     if workers == 1:
-        outcomes = []
-        for done, job in enumerate(jobs, start=1):
-            outcomes.append(_compute(job))
-            if progress:
-                _progress(done, len(jobs), job.path)
-        return outcomes
-    results: list[_Outcome | None] = [None] * len(jobs)
+        return [finished(_compute(job)) for job in jobs]
+    outcomes: list[_Outcome | None] = [None] * len(jobs)
+    orphans: list[int] = []  # files in flight when a worker died
     with ProcessPoolExecutor(max_workers=workers) as pool:
-        futures = {pool.submit(_compute, job): k for k, job in enumerate(jobs)}
-        for done, future in enumerate(as_completed(futures), start=1):
+        futures = {}
+        for k, job in enumerate(jobs):
+            try:
+                futures[pool.submit(_compute, job)] = k
+            except BrokenProcessPool:
+                orphans.append(k)
+        for future in as_completed(futures):
             k = futures[future]
-            results[k] = future.result()
-            if progress:
-                _progress(done, len(jobs), jobs[k].path)
-    return results
+            try:
+                outcomes[k] = finished(future.result())
+            except BrokenProcessPool:
+                orphans.append(k)
+            except Exception as exc:  # e.g. a result that cannot travel back
+                outcomes[k] = finished(_Outcome(jobs[k].path, error=_internal(exc, jobs[k].path)))
+    # A dead worker breaks the pool and every file in flight with it: compute those
+    # again one process each, so only the file that kills its worker fails.
+    for k in sorted(orphans):
+        outcomes[k] = finished(_alone(jobs[k]))
+    return outcomes
+
+
+def _alone(job: _Job) -> _Outcome:
+    with ProcessPoolExecutor(max_workers=1) as pool:
+        try:
+            return pool.submit(_compute, job).result()
+        except BrokenProcessPool:
+            return _Outcome(
+                job.path,
+                error=f"{job.path}: the worker process computing this file stopped abruptly "
+                "(killed, out of memory or crashed)",
+            )
+        except Exception as exc:
+            return _Outcome(job.path, error=_internal(exc, job.path))
 
 
 def _progress(done: int, count: int, path: str) -> None:
@@ -342,6 +523,9 @@ def _table(args: argparse.Namespace) -> int:
     files: list[str] = args.files
     if args.output is not None:
         _check_output(args.output, files, args.overwrite)
+    from .data import write_table
+    from .thermo import CAUTION
+
     jobs = [
         _Job(
             path, args.unit, args.atoms, args.columns, args.total, args.per, args.temperatures,
@@ -353,33 +537,49 @@ def _table(args: argparse.Namespace) -> int:
     progress = len(jobs) >= _PROGRESS_FROM and sys.stderr.isatty()
     outcomes = _compute_all(jobs, workers, progress)
 
-    failed = [o for o in outcomes if o.error is not None]
-    if failed:
-        # Warnings about files that were read are moot when there is no table.
-        for outcome in failed:
-            _say("error", outcome.error)
-        return 1
+    good = [o for o in outcomes if o.error is None]
     for outcome in outcomes:
+        # A failed file gets its one error line; warnings about it would be moot.
+        if outcome.error is not None:
+            _say("error", outcome.error)
         for message in outcome.warnings:
             _say("warning", message)
-    frame = outcomes[0].frame if len(outcomes) == 1 else _combine(outcomes)
-    if args.output is not None:
+    status = 0 if len(good) == len(outcomes) else 1
+    if not good:
+        return status
+    # The shape follows the command, not the luck of the batch: several files, several sources.
+    frame = good[0].frame if len(files) == 1 else _combine(good)
+    if args.output is None:
+        sys.stdout.write(_format(frame) + "\n")
+    else:
         write_table(frame, args.output, overwrite=args.overwrite)
-    sys.stdout.write(_format(frame) + "\n")
+        failed = len(outcomes) - len(good)
+        sys.stdout.write(
+            f"wrote {len(frame)} rows from {len(good)} of {_count(len(outcomes), 'file')} to {args.output}"
+            + (f"; {failed} failed (see the errors above)" if failed else "")
+            + "\n"
+        )
     sys.stdout.flush()
-    if args.output is not None:
-        _say("note", f"table written to {args.output}")
     _say("note", _basis(frame))
     _say("caution", CAUTION)
-    return 0
+    return status
+
+
+def _count(n: int, noun: str) -> str:
+    return f"{n} {noun}" + ("" if n == 1 else "s")
 
 
 def _check_output(output: str, files: list[str], overwrite: bool) -> None:
-    """Refuse before any work an output that cannot be written, would replace an input
-    or, without --overwrite, would replace any file."""
+    """Refuse before any work an output that cannot be written, is not a regular file,
+    would replace an input or, without --overwrite, would replace any file."""
+    from .data import check_table_destination
+
+    check_table_destination(output)
     folder = os.path.dirname(output) or "."
     if not os.path.isdir(folder):
         raise InputError(f"the folder {folder!r} does not exist", path=output)
+    if not os.access(folder, os.W_OK):
+        raise InputError(f"no permission to write in the folder {folder!r}", path=output)
     if not os.path.exists(output):
         return
     for path in files:
@@ -389,19 +589,44 @@ def _check_output(output: str, files: list[str], overwrite: bool) -> None:
         raise InputError("the output file exists; choose another name or pass --overwrite", path=output)
 
 
+# Table-wide metadata; every other scalar in a table's attrs is per source and becomes a column.
+_TABLE_WIDE = ("units", "per", "basis", "molar_mass", "caution", "source", "atoms")
+
+
 def _combine(outcomes: list[_Outcome]) -> pd.DataFrame:
+    """One table of several sources: ``source`` and ``atoms`` first, the thermodynamic
+    columns, then one column per further per-source value (``zero_point_energy``, the
+    low-temperature method, …), repeated on every row of its source."""
+    import numpy as np
+    import pandas as pd
+
+    from .thermo import CAUTION
+
+    first = outcomes[0].frame.attrs
+    units = dict(first["units"])
+    units.setdefault("zero_point_energy", units["U"])
+    extra: list[str] = []
+    for outcome in outcomes:
+        for key, value in outcome.frame.attrs.items():
+            scalar = value is None or isinstance(value, (str, int, float, bool, np.generic))
+            if key not in _TABLE_WIDE and key not in extra and scalar:
+                extra.append(key)
     parts = []
     for outcome in outcomes:
         part = outcome.frame.copy()
+        part.attrs = {}
         part.insert(0, "source", outcome.path)
+        part.insert(1, "atoms", float(outcome.frame.attrs["atoms"]))
+        for key in extra:
+            part[key] = outcome.frame.attrs.get(key)
         parts.append(part)
     frame = pd.concat(parts, ignore_index=True)
-    first = outcomes[0].frame.attrs
-    # Zero-point energies differ by file, so the combined table carries none.
+    bases = list(dict.fromkeys(outcome.frame.attrs["basis"] for outcome in outcomes))
     frame.attrs = {
-        "units": dict(first["units"]),
+        "units": units,
         "per": first["per"],
-        "atoms": first["atoms"],
+        "basis": bases[0] if len(bases) == 1 else "per source (see the atoms column): " + " | ".join(bases),
+        "molar_mass": first.get("molar_mass"),
         "caution": CAUTION,
     }
     return frame
@@ -420,8 +645,7 @@ def _format(frame: pd.DataFrame) -> str:
 
 
 def _basis(frame: pd.DataFrame) -> str:
-    a = frame.attrs
-    return "values " + (a.get("basis") or basis_text(a.get("per", "formula"), a.get("atoms", 1), a.get("molar_mass")))
+    return "values " + frame.attrs["basis"]
 
 
 def _say(kind: str, message: str) -> None:
@@ -439,14 +663,15 @@ def main(argv: Sequence[str] | None = None) -> int:
 
     Returns
     -------
-    int — the exit status: 0 success, 1 bad input, 2 bad usage
+    int — the exit status: 0 success, 1 bad input (any file of a batch failed, or the
+    output could not be written), 2 bad usage
     """
     parser = build_parser()
     try:
         args = parser.parse_args(argv)
         if hasattr(args, "check"):
             args.check(args)
-    except SystemExit as exc:  # --help and usage errors
+    except SystemExit as exc:  # --help, --version and usage errors
         return exc.code if isinstance(exc.code, int) else (0 if exc.code is None else 2)
     if not hasattr(args, "run"):
         parser.print_usage(sys.stderr)

@@ -66,14 +66,31 @@ Table files
 values: ``#`` comment lines with the caution, the basis, the units and the source,
 then one header row of column names and one row per temperature.  Numbers are written
 to 12 significant digits; a missing value (a Debye temperature that does not exist)
-is written ``nan``.
+is written ``nan``.  The destination must be a new or an existing regular file
+(:func:`check_table_destination`).
+
+A table of several sources (``modeheat table A B …``) keeps each source's metadata in
+columns, repeated on every row of that source: ``source`` (the file as named) and
+``atoms`` (atoms per formula unit) first, then ``T`` … ``theta_D``, then
+``zero_point_energy`` (unit of ``U``) and one column for every other single value the
+source's table carries in its ``attrs`` (e.g. the low-temperature method and cut-off),
+with its unit in the ``# units:`` line where the table gives one.  The comment lines
+hold what is common to all sources.  pandas reads it back as it is::
+
+    table = pandas.read_csv("batch.csv", comment="#")
+    for source, rows in table.groupby("source", sort=False): ...
+
+When some text cell holds a ``#`` (a file name such as ``run#2.txt``), every field is
+written in double quotes, so that ``comment="#"`` does not cut the cell short.
 """
 
 from __future__ import annotations
 
+import csv
 import os
 import re
 import secrets
+import stat
 import warnings
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
@@ -91,6 +108,7 @@ from .units import FREQUENCY_UNITS, check_unit
 __all__ = [
     "read_spectrum",
     "write_table",
+    "check_table_destination",
     "read_heat_capacity",
     "HeatCapacityWarning",
     "HEAT_CAPACITY_UNITS",
@@ -509,7 +527,7 @@ def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool
     frame : pandas.DataFrame — a table from :func:`modeheat.thermo` (``attrs`` must hold
         ``units`` and ``per``)
     path : str or os.PathLike — the CSV file to write
-    overwrite : bool — replace an existing file (by default that is an error)
+    overwrite : bool — replace an existing regular file (by default that is an error)
 
     Returns
     -------
@@ -519,13 +537,13 @@ def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool
     Raises
     ------
     InputError
-        The file exists and `overwrite` is false, the folder is missing or not writable,
-        or the table carries no units or basis.
+        The file exists and `overwrite` is false, the path names a folder, a device, a
+        FIFO, a socket or a symbolic link (:func:`check_table_destination`), the folder
+        is missing or not writable, or the table carries no units or basis.
     """
     path = Path(path)
     text = _table_text(frame)
-    if path.is_dir():
-        raise InputError("is a folder, not a file", path=path)
+    check_table_destination(path)
     if not overwrite and path.exists():
         raise InputError("the file exists; choose another name or allow overwriting", path=path)
     folder = path.parent
@@ -550,6 +568,37 @@ def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool
     finally:
         temporary.unlink(missing_ok=True)
     return path
+
+
+def check_table_destination(path: str | os.PathLike) -> None:
+    """Refuse a table destination that is not, or would not become, a regular file.
+
+    Writing renames a new file into place, which would replace a folder's name, a
+    device such as ``/dev/null``, a FIFO, a socket or a symbolic link (not its target)
+    by a regular file: each is refused.  A missing or existing regular file passes.
+
+    Parameters
+    ----------
+    path : str or os.PathLike — the CSV file to be written
+
+    Raises
+    ------
+    InputError
+        The path names something other than a regular file; the message says what.
+    """
+    try:
+        mode = os.lstat(path).st_mode
+    except FileNotFoundError:
+        return
+    except OSError as exc:
+        raise InputError(f"cannot check the output file ({exc.strerror or exc})", path=path) from None
+    if stat.S_ISREG(mode):
+        return
+    if stat.S_ISDIR(mode):
+        raise InputError("is a folder, not a file", path=path)
+    if stat.S_ISLNK(mode):
+        raise InputError("is a symbolic link; name its target or another file", path=path)
+    raise InputError("is not a regular file (a device, FIFO or socket); choose a file name", path=path)
 
 
 def _place_new(temporary: Path, path: Path) -> None:
@@ -588,7 +637,19 @@ def _table_text(frame: pd.DataFrame) -> str:
         unit_u = units.get("U", "J/mol")
         lines.append(f"zero-point energy: {zpe:.12g} {unit_u}")
     head = "".join("# " + " ".join(str(line).split()) + "\n" for line in lines)
-    body = frame.to_csv(index=False, float_format="%.12g", na_rep="nan", lineterminator="\n")
+    # Quoted, a "#" in a text cell is not a comment to pandas.read_csv(comment="#").
+    hashed = any(
+        frame[col].astype(str).str.contains("#", regex=False).any()
+        for col in frame.columns
+        if not pd.api.types.is_numeric_dtype(frame[col])
+    )
+    body = frame.to_csv(
+        index=False,
+        float_format="%.12g",
+        na_rep="nan",
+        lineterminator="\n",
+        quoting=csv.QUOTE_NONNUMERIC if hashed else csv.QUOTE_MINIMAL,
+    )
     return head + body
 
 

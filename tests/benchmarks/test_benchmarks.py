@@ -37,3 +37,12 @@ def test_fitting_benchmark_prints_times(capsys):
     assert "target" in out and times["fit_s"] > 0
     # the benchmark's fit must be right, whatever its speed: truth within 4σ (seeded data)
     assert times["worst_sigma"] < 4
+
+
+def test_startup_benchmark_prints_ratio(capsys):
+    from bench_startup import main
+
+    result = main()
+    out = capsys.readouterr().out
+    print(out)
+    assert "target" in out and result["ratio"] > 0
