@@ -11,7 +11,7 @@ from .data import (
     write_table,
 )
 from .fitting import DebyeBreakdown, FitResult, FitWarning, LowTemperatureFit, debye_breakdown, fit, low_temperature_fit
-from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
+from .errors import AtomCountWarning, InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
 from .models import Band, Component, Debye, Dilatation, Einstein, Electronic, Mixture, ModeCountWarning, Schottky, SineChain, solid
 from .spectrum import ReducedDensity, Spectrum, debye_temperature_from_sound
 from .thermo import (
@@ -28,6 +28,7 @@ from .thermo import (
 __version__ = "0.1.0"
 
 __all__ = [
+    "AtomCountWarning",
     "DebyeBreakdown",
     "Dilatation",
     "FitResult",
