@@ -152,7 +152,7 @@ def test_low_temperature_continuation_options(tmp_path, capsys):
     table = pd.read_csv(out, comment="#")
     # common practice: θ_D(T → 0) is the Debye temperature of the ω² branch given
     assert table["theta_D"][0] == pytest.approx(250.0, rel=1e-12)
-    expected = thermo(read_spectrum(GOOD, low_t=250.0), [0.0, 1.0, 300.0])
+    expected = thermo(read_spectrum(GOOD, atoms=1, low_t=250.0), [0.0, 1.0, 300.0])
     np.testing.assert_allclose(table.to_numpy(), expected.to_numpy(), rtol=1e-11)
     assert main(["table", str(GOOD), "--temperatures", "1", "--low-t", "off"]) == 0
     assert main(["table", str(GOOD), "--temperatures", "1", "--low-t-cutoff", "1e9"]) == 1
@@ -182,7 +182,7 @@ def test_several_files_in_parallel_make_one_tidy_table(tmp_path, capsys, monkeyp
     assert list(table.columns) == ["source", *COLUMNS]
     assert list(table["source"]) == [str(GOOD)] * 2 + [str(second)] * 2
     for path in (GOOD, second):
-        alone = thermo(read_spectrum(path), [10.0, 300.0])
+        alone = thermo(read_spectrum(path, atoms=1), [10.0, 300.0])
         part = table[table["source"] == str(path)][COLUMNS].to_numpy()
         np.testing.assert_allclose(part, alone.to_numpy(), rtol=1e-11)
 
@@ -281,7 +281,7 @@ def test_never_overwrites_an_input_file(tmp_path, capsys):
 
 
 def test_write_table_directly(tmp_path):
-    frame = thermo(read_spectrum(GOOD), [10.0, 300.0])
+    frame = thermo(read_spectrum(GOOD, atoms=1), [10.0, 300.0])
     path = tmp_path / "t.csv"
     assert write_table(frame, path) == path
     with pytest.raises(InputError, match="the file exists") as info:
