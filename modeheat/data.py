@@ -232,7 +232,7 @@ def _atoms_of_file(atoms, table: _Table, path) -> float | None:
     written, line = table.atoms
     if atoms is not None and not np.isclose(atoms, written, rtol=1e-12, atol=0.0):
         raise InputError(
-            f"atoms={atoms:g} was asked for but the file gives {written:g} atoms per formula unit",
+            f"atoms={atoms:g} was asked for but the file says atoms: {written:g}",
             path=path,
             line=line,
         )

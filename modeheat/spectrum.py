@@ -169,13 +169,17 @@ def _resolve_atoms(atoms, modes: float, informative: bool, what: str, who: str) 
     given = _check_atoms(atoms)
     if clear is not None and clear != given:
         warnings.warn(
-            f"{who}: {what} {modes:.6g} modes, 3 modes per atom for {clear} atoms, but atoms={given:g} was "
-            f"given; it is normalised to 3·{given:g} modes (pass atoms={clear} if the data are per formula "
-            f"unit of {clear} atoms)",
+            f"{who}: {what} {modes:.6g} modes, 3 modes per atom for {_atoms_text(clear)}, but atoms={given:g} "
+            f"was given; it is normalised to 3·{given:g} modes (pass atoms={clear} if the data are per formula "
+            f"unit of {_atoms_text(clear)})",
             AtomCountWarning,
             stacklevel=3,
         )
     return given, "given"
+
+
+def _atoms_text(n: float) -> str:
+    return "1 atom" if n == 1 else f"{n:g} atoms"
 
 
 def _label(name) -> str:
