@@ -279,7 +279,7 @@ class Spectrum:
     The limits keep unnormalised data from being misread: a density of raw mode counts
     of a q-mesh of N_q ≥ 33 points (3·atoms·N_q modes) lies above 3·32, and an arbitrary
     total passes the 0.1-mode test by chance at most 1 time in 15; larger formula units
-    need `atoms`, which is then only checked.  Whole-number counts or weights, and a
+    need `atoms` (or a file's `# atoms:` line).  Whole-number counts or weights, and a
     mode list without weights, count modes of a q-mesh — 3·atoms·N_q for N_q q-points —
     and say nothing about atoms alone; only fractional ones (q-point weights summing to
     1, a normalised histogram) are read.
