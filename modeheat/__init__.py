@@ -12,11 +12,12 @@ import importlib
 import sys
 import types
 
-from .errors import InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
+from .errors import AtomCountWarning, InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
 
 __version__ = "0.1.0"
 
 __all__ = [
+    "AtomCountWarning",
     "DebyeBreakdown",
     "Dilatation",
     "FitQuality",

@@ -34,6 +34,22 @@ further column a density of states on that frequency grid.
   the others are partial densities.  Without one, a single density column is the
   total; with several, the total is their sum and each is a partial.  ``total=``
   names the total column, or ``total="sum"`` asks for the sum.
+* **Atom count.**  A comment line ``# atoms: 2`` (anywhere in the file; the key is
+  case-insensitive, the value a positive number) gives the atoms per formula unit; it
+  is never read as a header, and a comment header may stand directly above it.
+  An ``atoms=`` argument that differs from it is an error naming the line, and so is a
+  second such line with another value.  Without it and without ``atoms=``, the count
+  comes from the density's integral, 3 modes per atom (:class:`~modeheat.spectrum.Spectrum`
+  says when that is clear), else an error asks for ``atoms=``.  Heat-capacity files
+  take the same line.
+* **The right kind of file.**  A file whose header names its first column as a
+  temperature (``T``, ``temp``, ``temperature``, with or without a unit) or gives any
+  column a heat-capacity unit (``J/(mol K)``, ``mJ/mol/K``, ``J/g/K`` …) is a
+  heat-capacity file: :func:`read_spectrum` refuses it and names
+  :func:`read_heat_capacity`, which in turn refuses a file whose first column is named
+  as a frequency (``frequency``, ``freq``, ``omega``, ``nu``, ``energy``) or carries a
+  frequency unit (THz, meV, cm-1, rad/s), or — when nothing marks it as heat
+  capacities — has density columns (``density``, ``dos``, ``total``, ``partial…``).
 
 Negative frequencies are imaginary modes; the spectrum excludes them with a warning
 (an error when every frequency is ≤ 0).  Unsorted or repeated frequencies and tiny
@@ -46,6 +62,7 @@ names the file and, where one applies, the 1-based line.
 An example::
 
     # Invented spectrum of a two-atom compound
+    # atoms: 2
     frequency (THz), total, A, B
     0.0, 0.0, 0.0, 0.0
     0.5, 0.012, 0.008, 0.004   # a trailing comment
@@ -138,13 +155,17 @@ class _Table:
     header: _Header | None
     values: np.ndarray  # (rows, columns)
     lines: list[int]  # 1-based file line of each row
+    atoms: tuple[float, int] | None = None  # the "# atoms: n" line's count and line number
+
+
+_ATOMS_LINE = re.compile(r"atoms\s*:\s*(?P<value>[^#]*?)\s*(?:#.*)?", re.IGNORECASE)
 
 
 def read_spectrum(
     path: str | os.PathLike,
     *,
     unit: str | None = None,
-    atoms: float = 1,
+    atoms: float | None = None,
     columns: Sequence[str | int] | None = None,
     total: str | None = None,
     name: str | None = None,
@@ -160,7 +181,9 @@ def read_spectrum(
     path : str or os.PathLike — the file
     unit : str, optional — frequency unit ("THz", "meV", "cm-1", "rad/s" or "K"); needed
         when the header gives none, and must agree with the header when it does
-    atoms : float — atoms per formula unit
+    atoms : float, optional — atoms per formula unit; by default the file's
+        ``# atoms:`` line, else the density's clear integral (3 modes per atom), else an
+        error (:attr:`Spectrum.atoms_source` says which)
     columns : sequence of str or int, optional — the columns to use, by header name or
         0-based index; the first is the frequency, the rest densities
     total : str, optional — name of the total-density column, or "sum" to use the sum
@@ -177,27 +200,33 @@ def read_spectrum(
     Raises
     ------
     InputError
-        The file cannot be read or is not a valid spectrum; the message names the file
-        and, where one applies, the line.
+        The file cannot be read or is not a valid spectrum (a heat-capacity file among
+        them); `atoms` differs from the file's ``# atoms:`` line; no atom count is given
+        and the integral does not tell it.  The message names the file and, where one
+        applies, the line.
 
     Warns
     -----
     SpectrumWarning
         A repair of the data (unsorted or repeated frequencies, tiny negative densities,
         imaginary modes excluded); the message quotes `name`.
+    AtomCountWarning
+        The atom count given (argument or file) is not the one the integral clearly says.
     """
     table = _parse(_read_text(path), path)
+    _refuse_heat_capacity(table.header, path)
+    count = _atoms_of_file(atoms, table, path)
     names = table.header.names if table.header else _default_names(table.values.shape[1])
     chosen = _select(columns, names, table.header, path)
     freq_col, dens_cols = chosen[0], chosen[1:]
     unit = _resolve_unit(unit, table.header, freq_col, path)
     density, partials = _total_and_partials(total, [names[i] for i in dens_cols], table.values[:, dens_cols], path)
     try:
-        return Spectrum(
+        spectrum = Spectrum(
             table.values[:, freq_col],
             density,
             unit=unit,
-            atoms=atoms,
+            atoms=count,
             partials=partials,
             name=Path(path).name if name is None else name,
             low_t=low_t,
@@ -207,6 +236,38 @@ def read_spectrum(
         index = err.index
         line = table.lines[index] if index is not None and 0 <= index < len(table.lines) else None
         raise InputError(err.problem, path=path, line=line) from None
+    if atoms is None and count is not None:
+        return spectrum._with(atoms_source="file")
+    return spectrum
+
+
+def _atoms_of_file(atoms, table: _Table, path) -> float | None:
+    """The atom count asked for, else the file's ``# atoms:`` line, else None; they must agree."""
+    if atoms is not None:
+        atoms = _positive_argument("atoms", atoms, path)
+    if table.atoms is None:
+        return atoms
+    written, line = table.atoms
+    if atoms is not None and not np.isclose(atoms, written, rtol=1e-12, atol=0.0):
+        raise InputError(
+            f"atoms={atoms:g} was asked for but the file says atoms: {written:g}",
+            path=path,
+            line=line,
+        )
+    return written
+
+
+def _atoms_line(text: str, number: int, path) -> float | None:
+    """The count of a ``# atoms: n`` comment (text after the ``#``), None for any other comment."""
+    match = _ATOMS_LINE.fullmatch(text)
+    if match is None:
+        return None
+    value = match["value"]
+    if not _NUMBER.fullmatch(value) or not (np.isfinite(float(value)) and float(value) > 0):
+        raise InputError(
+            f"the atom count {value!r} is not a positive number: write e.g. '# atoms: 2'", path=path, line=number
+        )
+    return float(value)
 
 
 # --- reading the text ---------------------------------------------------------------------
@@ -253,14 +314,25 @@ def _parse(text: str, path, expected: str = _SPECTRUM_COLUMNS) -> _Table:
     width = 0
     rows: list[list[float]] = []
     lines: list[int] = []
+    atoms: tuple[float, int] | None = None
     for number, raw_line in enumerate(text.split("\n"), start=1):
         stripped = raw_line.strip()
         if not stripped:
             comment_above = None
             continue
         if stripped.startswith("#"):
-            comment_above = (number, stripped[1:].strip())
-            continue
+            count = _atoms_line(stripped[1:].strip(), number, path)
+            if count is None:
+                comment_above = (number, stripped[1:].strip())
+                continue
+            if atoms is not None and atoms[0] != count:
+                raise InputError(
+                    f"a second atom count, {count:g}, differs from the {atoms[0]:g} of line {atoms[1]}",
+                    path=path,
+                    line=number,
+                )
+            atoms = atoms or (count, number)
+            continue  # transparent: a comment header above it still counts as directly above the data
         content = stripped.split("#", 1)[0].strip()
         if not rows and header is None:
             fields = _split_header(content)
@@ -304,7 +376,7 @@ def _parse(text: str, path, expected: str = _SPECTRUM_COLUMNS) -> _Table:
             path=path,
             line=header.line,
         )
-    return _Table(header, np.array(rows, dtype=float), lines)
+    return _Table(header, np.array(rows, dtype=float), lines, atoms)
 
 
 def _separator(content: str, number: int, path) -> str | None:
@@ -406,6 +478,64 @@ def _number(field: str, k: int, header: _Header | None, path, number: int) -> fl
     else:
         problem = f"{where} is {field!r}, not a number"
     raise InputError(problem, path=path, line=number)
+
+
+# --- the right kind of file ---------------------------------------------------------------------
+_TEMPERATURE_NAMES = ("t", "temp", "temperature")
+_FREQUENCY_NAMES = ("frequency", "freq", "omega", "ω", "nu", "ν", "energy")
+_DENSITY_NAMES = ("density", "dos", "total", "pdos", "partial")
+
+
+def _cp_mark(header: _Header | None) -> str | None:
+    """Why the header is a heat-capacity file's, or None."""
+    if header is None:
+        return None
+    if header.names[0].casefold() in _TEMPERATURE_NAMES:
+        return f"its first column, {header.fields[0]!r}, is a temperature"
+    for k, unit in enumerate(header.units):
+        if unit is not None and _cp_unit(unit) is not None:
+            return f"header field {k + 1}, {header.fields[k]!r}, has the heat-capacity unit {unit!r}"
+    return None
+
+
+def _refuse_heat_capacity(header: _Header | None, path) -> None:
+    why = _cp_mark(header)
+    if why is not None:
+        raise InputError(
+            f"this is a heat-capacity file, not a density of states ({why}); read it with read_heat_capacity",
+            path=path,
+            line=header.line,
+        )
+
+
+def _refuse_spectrum(header: _Header | None, path) -> None:
+    if header is None:
+        return
+    first, unit = header.names[0].casefold(), header.units[0]
+    why = None
+    if first in _FREQUENCY_NAMES:
+        why = f"its first column, {header.fields[0]!r}, is a frequency"
+    elif unit is not None and unit.strip().lower() not in _TEMPERATURE_UNITS and _is_frequency_unit(unit):
+        why = f"its first column, {header.fields[0]!r}, has the frequency unit {unit!r}"
+    elif _cp_mark(header) is None:
+        dens = [f for n, f in zip(header.names, header.fields) if n.casefold().startswith(_DENSITY_NAMES)]
+        if dens:
+            why = f"it has density-of-states columns ({', '.join(repr(f) for f in dens)})"
+    if why is not None:
+        raise InputError(
+            f"this is a density-of-states file, not heat capacities ({why}); read it with read_spectrum "
+            "or the command 'modeheat table'",
+            path=path,
+            line=header.line,
+        )
+
+
+def _is_frequency_unit(unit: str) -> bool:
+    try:
+        check_unit(unit)
+    except InputError:
+        return False
+    return True
 
 
 # --- columns, unit, total -----------------------------------------------------------------------
@@ -721,7 +851,7 @@ def read_heat_capacity(
     path: str | os.PathLike,
     *,
     unit: str | None = None,
-    atoms: float = 1,
+    atoms: float | None = None,
     molar_mass: float | None = None,
     columns: Sequence[str | int] | None = None,
     per: str | None = None,
@@ -754,11 +884,21 @@ def read_heat_capacity(
     ``J/(mol-atom K)`` (also ``mJ/(mol-atom K)``, ``cal/(mol-atom K)`` …).  Per-mass data
     are multiplied by `molar_mass`, the grams per mole of formula units.
 
+    Atom count
+    ----------
+    `atoms`, else the file's ``# atoms:`` line (module docstring), is stored in
+    ``attrs["atoms"]``; :func:`~modeheat.fitting.low_temperature_fit`, :func:`~modeheat.fitting.fit`,
+    :func:`~modeheat.fitting.debye_breakdown` and
+    :func:`~modeheat.thermo.effective_debye_temperature` use it.  Without either it is
+    None (those functions then take 1 atom per formula unit unless told otherwise),
+    except for data per mole of atoms, which are then per formula unit of one atom
+    (``attrs["atoms"]`` = 1).
+
     Parameters
     ----------
     path : str or os.PathLike — the file
     unit : str, optional — the heat-capacity unit, when the header gives none
-    atoms : float — atoms per formula unit
+    atoms : float, optional — atoms per formula unit (Atom count)
     molar_mass : float, optional — molar mass in g/mol of formula units (per-mass units)
     columns : sequence of str or int, optional — the temperature, heat-capacity and
         (optional) uncertainty columns, by header name or 0-based index; by default the
@@ -779,7 +919,8 @@ def read_heat_capacity(
     Raises
     ------
     InputError
-        The file cannot be read or does not hold valid heat capacities: a temperature
+        The file cannot be read or does not hold valid heat capacities: a density of
+        states (it names :func:`read_spectrum`), `atoms` unlike the ``# atoms:`` line, a temperature
         ≤ 0, a non-finite value, a negative heat capacity, an uncertainty ≤ 0, text
         where a number belongs, a row of the wrong length, an unknown unit, a per-mass
         unit without `molar_mass`.  The message names the file and, where one applies,
@@ -790,12 +931,13 @@ def read_heat_capacity(
     HeatCapacityWarning
         The rows were not in increasing order of temperature and have been sorted.
     """
-    atoms = _positive_argument("atoms", atoms, path)
     if molar_mass is not None:
         molar_mass = _positive_argument("molar_mass", molar_mass, path)
     if per not in (None, "formula", "atom"):
         raise InputError(f"per must be 'formula' or 'atom', not {per!r}", path=path)
     table = _parse(_read_text(path), path, _CP_COLUMNS)
+    _refuse_spectrum(table.header, path)
+    atoms = _atoms_of_file(atoms, table, path)
     width = table.values.shape[1]
     header = table.header
     names = header.names if header is not None else list(_CP_NAMES[:width]) + [f"column {k}" for k in range(3, width)]
@@ -818,11 +960,13 @@ def read_heat_capacity(
         chosen = _select(wanted, names, header, path)
     _check_temperature_unit(header, chosen[0], path)
     c_unit = _resolve_cp_unit(unit, header, chosen[1], path)
-    factor = _cp_factor(c_unit, per, atoms, molar_mass, path, header)
+    if atoms is None and (per == "atom" or c_unit.basis == "atom"):
+        atoms = 1.0  # per-atom data with no count: per formula unit of one atom
+    factor = _cp_factor(c_unit, per, atoms or 1.0, molar_mass, path, header)
     sigma_factor = factor
     if len(chosen) == 3 and header is not None and header.units[chosen[2]] is not None:
         s_unit = _written_cp_unit(header, chosen[2], path)
-        sigma_factor = _cp_factor(s_unit, per, atoms, molar_mass, path, header)
+        sigma_factor = _cp_factor(s_unit, per, atoms or 1.0, molar_mass, path, header)
     values = table.values[:, chosen]
     _check_cp_rows(values, [names[k] for k in chosen], [k + 1 for k in chosen], table.lines, path)
     lines = np.asarray(table.lines)

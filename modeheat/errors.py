@@ -12,6 +12,7 @@ __all__ = [
     "InputError",
     "ModeheatWarning",
     "SpectrumWarning",
+    "AtomCountWarning",
     "NoDebyeTemperatureWarning",
 ]
 
@@ -65,6 +66,15 @@ class ModeheatWarning(UserWarning):
 
 class SpectrumWarning(ModeheatWarning):
     """A spectrum was repaired on the way in (imaginary modes, clipped noise, merged points)."""
+
+
+class AtomCountWarning(ModeheatWarning):
+    """A density of states holds clearly 3·n modes for a whole n other than the atoms given.
+
+    The spectrum is still normalised to 3·atoms with the atoms given; the message names
+    the count the data suggest.  :class:`~modeheat.spectrum.Spectrum` says when a mode
+    count is clear.
+    """
 
 
 class NoDebyeTemperatureWarning(ModeheatWarning):

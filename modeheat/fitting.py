@@ -36,7 +36,7 @@ from scipy.special import chdtri, gammaln
 from ._engine import ModeSet
 from .errors import InputError, ModeheatWarning
 from .models import Component, Dilatation, Electronic, Mixture
-from .thermo import CAUTION, effective_debye_temperature, heat_capacity, thermo
+from .thermo import CAUTION, atoms_of_data, effective_debye_temperature, heat_capacity, thermo
 from .units import R
 
 __all__ = [
@@ -228,7 +228,7 @@ def low_temperature_fit(
     data,
     *,
     tmax: float,
-    atoms: float = 1,
+    atoms: float | None = None,
     terms: Sequence[str] = ("gamma", "beta"),
     tmin: float | None = None,
 ) -> LowTemperatureFit:
@@ -246,7 +246,9 @@ def low_temperature_fit(
     data : DataFrame (or list of them, pooled) — ``T`` [K], ``C`` [J/(mol K)],
         optionally ``sigma`` [J/(mol K)]
     tmax : float — upper end of the fit window in K
-    atoms : float — atoms per formula unit (for θ_D(0))
+    atoms : float, optional — atoms per formula unit (for θ_D(0)); by default the
+        count the data store (``attrs["atoms"]``), else 1; a different count than the
+        stored one is an error (:func:`~modeheat.thermo.atoms_of_data`)
     terms : sequence of str — which of "gamma", "beta", "delta" to fit; "beta" is needed
     tmin : float, optional — lower end of the fit window in K
 
@@ -264,8 +266,7 @@ def low_temperature_fit(
     _check_window(tmin, tmax)
     if tmax is None:
         raise InputError("tmax: give the upper end of the low-temperature window in K")
-    if not (isinstance(atoms, numbers.Real) and math.isfinite(atoms) and atoms > 0):
-        raise InputError(f"atoms must be positive, not {atoms!r}")
+    atoms, _ = atoms_of_data(data, atoms)
     wanted = [terms] if isinstance(terms, str) else list(terms)
     unknown = [t for t in wanted if t not in _LOW_T_TERMS]
     if unknown or len(set(wanted)) != len(wanted) or "beta" not in wanted:
@@ -827,6 +828,7 @@ def fit(
     loss: str = "linear",
     fixed: Mapping[str, float] | Iterable[str] | None = None,
     f_scale: float | None = None,
+    atoms: float | None = None,
 ) -> FitResult:
     """Least-squares fit of a model component or mixture to measured C_p(T).
 
@@ -862,6 +864,10 @@ def fit(
         when weighted (default 1.345, Huber's constant), in J/(mol K) when unweighted
         (default 1.345 × 1.4826 × the median absolute residual of a first fit with the
         linear loss, i.e. 1.345 robust standard deviations)
+    atoms : float, optional — atoms per formula unit of the data; by default the count
+        they store (``attrs["atoms"]``).  When known (given or stored,
+        :func:`~modeheat.thermo.atoms_of_data`) the model must carry 3·atoms
+        vibrational modes (its :meth:`Mixture.with_atoms` check)
 
     Returns
     -------
@@ -882,9 +888,16 @@ def fit(
     InputError
         Unknown or contradictory parameter names, bad bounds, a single varied mode
         count, fewer points in the window than varied parameters + 1, more than one
-        Dilatation component.
+        Dilatation component, an atom count unlike the data's or the model's.
     """
     mixture = _as_mixture(model)
+    count, known = atoms_of_data(_data_sets(data), atoms)
+    if known:
+        if mixture.atoms is not None and not math.isclose(mixture.atoms, count):
+            raise InputError(
+                f"the model is for atoms={mixture.atoms:g} but the data for atoms={count:g}"
+            )
+        mixture = mixture.with_atoms(count, check=mixture.check)
     if sum(isinstance(c, Dilatation) for c in mixture.components) > 1:
         raise InputError("the model holds more than one Dilatation component; one A describes C_p − C_v")
     if loss not in _LOSSES:
@@ -1180,8 +1193,9 @@ def debye_breakdown(
     temperatures : array_like, optional — temperatures to examine in K (models and
         spectra: by default 400 points from 1e-3 of the lowest mode to 3× the highest;
         data: the data's own temperatures)
-    atoms : float, optional — atoms per formula unit of measured data (default
-        ``attrs["atoms"]`` or 1); models and spectra know their own
+    atoms : float, optional — atoms per formula unit of measured data (default the
+        stored ``attrs["atoms"]``, else 1; :func:`~modeheat.thermo.atoms_of_data`);
+        models and spectra know their own
     low_t : LowTemperatureFit, optional — γ and θ_D(0) of measured data
     tmax : float, optional — upper end of the low-temperature fit window (K), used for
         measured data when `low_t` is not given
@@ -1290,8 +1304,7 @@ def _crossing(excess, T: np.ndarray, inside: np.ndarray) -> float:
 def _breakdown_of_data(frame, tolerance, temperatures, atoms, low_t, tmax, gamma) -> DebyeBreakdown:
     if temperatures is not None:
         raise InputError("temperatures: measured data are examined at their own temperatures")
-    if atoms is None:
-        atoms = float(frame.attrs.get("atoms", 1.0) or 1.0)
+    atoms, _ = atoms_of_data(frame, atoms)
     notes = []
     if low_t is None:
         if tmax is None:

@@ -23,6 +23,12 @@ that fit — the choice for a q-mesh DOS whose lowest shells are undercounted.
 third sampled point above the first one with positive density (what the grid
 resolves); for a list of N modes it is the frequency of the max(20, N/10⁴)-th lowest
 mode, and below 200 modes there is no continuation.
+
+**Atom count.**  The spectrum is normalised to 3 modes per atom, 3·atoms per formula
+unit.  When ``atoms`` is not given it is read from the data: a density normalised to
+3·n modes says n (see :class:`Spectrum` for when that is clear); otherwise the
+constructors refuse with an :class:`~modeheat.errors.InputError`.  A given count that
+the data clearly contradict draws an :class:`~modeheat.errors.AtomCountWarning`.
 """
 
 from __future__ import annotations
@@ -36,7 +42,7 @@ import numpy as np
 from scipy import constants as _c
 
 from ._engine import DebyeBranch, ModeSet
-from .errors import InputError, SpectrumWarning
+from .errors import AtomCountWarning, InputError, SpectrumWarning
 from .units import check_unit, kelvin_per
 
 __all__ = ["Spectrum", "ReducedDensity", "debye_temperature_from_sound"]
@@ -46,6 +52,9 @@ _GAUSS = np.polynomial.legendre.leggauss(4)
 _MIN_MODES_FOR_FIT = 200
 _FIT_MODES = 20
 _FIT_FRACTION = 1e-4
+_ATOMS_TOLERANCE = 0.01  # a mode count within 1 % of 3·n ...
+_ATOMS_MODES = 0.1  # ... and within 0.1 mode of it names n
+_MAX_INFERRED_ATOMS = 32  # raw counts of any q-mesh of ≥ 33 points (3·atoms·N_q) lie above
 
 
 @dataclass(frozen=True)
@@ -131,6 +140,48 @@ def _check_atoms(atoms) -> float:
     return a
 
 
+def _clear_atoms(modes: float) -> int | None:
+    """The whole n (1 to 32) of which `modes` is clearly 3·n, or None."""
+    n = round(modes / 3.0) if math.isfinite(modes) else 0
+    if 1 <= n <= _MAX_INFERRED_ATOMS and abs(modes - 3.0 * n) <= min(_ATOMS_TOLERANCE * 3.0 * n, _ATOMS_MODES):
+        return int(n)
+    return None
+
+
+def _resolve_atoms(atoms, modes: float, informative: bool, what: str, who: str) -> tuple[float, str]:
+    """The atom count to use and how it was obtained ("given" or "integral").
+
+    `modes` is the mode count of the data as given, `what` says in words how it was
+    counted, and `informative` whether it can tell the atom count at all.
+    """
+    clear = _clear_atoms(modes) if informative else None
+    if atoms is None:
+        if clear is None:
+            if informative:
+                why = (
+                    f"{what} {modes:.6g} modes, not within {_ATOMS_TOLERANCE:.0%} (and {_ATOMS_MODES:g} mode) of "
+                    f"3·n for a whole n from 1 to {_MAX_INFERRED_ATOMS} (3 modes per atom)"
+                )
+            else:
+                why = what
+            raise InputError(f"pass atoms=... (atoms per formula unit): {why}")
+        return float(clear), "integral"
+    given = _check_atoms(atoms)
+    if clear is not None and clear != given:
+        warnings.warn(
+            f"{who}: {what} {modes:.6g} modes, 3 modes per atom for {_atoms_text(clear)}, but atoms={given:g} "
+            f"was given; it is normalised to 3·{given:g} modes (pass atoms={clear} if the data are per formula "
+            f"unit of {_atoms_text(clear)})",
+            AtomCountWarning,
+            stacklevel=3,
+        )
+    return given, "given"
+
+
+def _atoms_text(n: float) -> str:
+    return "1 atom" if n == 1 else f"{n:g} atoms"
+
+
 def _label(name) -> str:
     return f"spectrum {name!r}" if name else "spectrum"
 
@@ -191,7 +242,8 @@ class Spectrum:
         modes, which are excluded with a warning
     density : array_like — g(ω) on that grid, any normalisation (modes per unit)
     unit : str — "THz", "meV", "cm-1", "rad/s" or "K" (temperature equivalent)
-    atoms : float — atoms per formula unit
+    atoms : float, optional — atoms per formula unit; by default read from the data
+        (Notes), else an InputError
     partials : mapping of str to array_like, optional — partial densities (per species)
         on the same grid, in the same normalisation as `density`
     name : str, optional
@@ -202,8 +254,35 @@ class Spectrum:
     Raises
     ------
     InputError
-        Non-finite values, negative densities beyond noise, no real modes; ``index``
-        names the offending row.
+        Non-finite values, negative densities beyond noise, no real modes, `atoms` not
+        given and not clear from the data; ``index`` names the offending row.
+
+    Warns
+    -----
+    AtomCountWarning
+        `atoms` is given but the data clearly hold 3·n modes for another whole n.
+
+    Notes
+    -----
+    **Atom count from the data.**  A density normalised per formula unit integrates to
+    3 modes per atom (common practice).  The count is read from the data as given,
+    before any repair or normalisation: the trapezoid integral over every sampled point,
+    imaginary (negative) frequencies included, since a q-mesh density normalised to 3n
+    with a small imaginary part still holds 3n in total; the trapezoid rule because that
+    is how such files are normalised (on a grid that resolves the spectrum it differs
+    from the spectrum's own quadrature by far less than the tolerance).  For
+    :meth:`from_histogram` it is the sum of all counts, for :meth:`from_modes` the sum of
+    all weights.  The count is *clear* when it lies within 1 % of 3·n, and within 0.1
+    mode, for a whole n from 1 to 32; then ``atoms=None`` takes n (:attr:`atoms_source`
+    "integral") and a different `atoms` draws an :class:`AtomCountWarning`.  Otherwise
+    ``atoms=None`` is an InputError: a density normalised to 1, or an unnormalised one.
+    The limits keep unnormalised data from being misread: a density of raw mode counts
+    of a q-mesh of N_q ≥ 33 points (3·atoms·N_q modes) lies above 3·32, and an arbitrary
+    total passes the 0.1-mode test by chance at most 1 time in 15; larger formula units
+    need `atoms` (or a file's `# atoms:` line).  Whole-number counts or weights, and a
+    mode list without weights, count modes of a q-mesh — 3·atoms·N_q for N_q q-points —
+    and say nothing about atoms alone; only fractional ones (q-point weights summing to
+    1, a normalised histogram) are read.
     """
 
     __slots__ = (
@@ -219,6 +298,8 @@ class Spectrum:
         "_fit_theta",
         "_raw_integral",
         "_modeset",
+        "_atoms_source",
+        "_mode_integral",
     )
 
     def __init__(
@@ -227,14 +308,13 @@ class Spectrum:
         density,
         *,
         unit: str = "THz",
-        atoms: float = 1,
+        atoms: float | None = None,
         partials: Mapping[str, object] | None = None,
         name: str | None = None,
         low_t: str | float = "fit",
         low_t_cutoff: float | None = None,
     ):
         unit = check_unit(unit)
-        atoms = _check_atoms(atoms)
         low_t = _check_low_t(low_t)
         who = _label(name)
         f = _vector("frequency", frequency)
@@ -250,6 +330,7 @@ class Spectrum:
             warnings.warn(f"{who}: frequencies were not in increasing order; sorted", SpectrumWarning, stacklevel=2)
         f, g = f[order], g[order]
         parts = {k: v[order] for k, v in parts.items()}
+        mode_integral = float(np.trapezoid(g, f))
         g = _clip_noise("density", g, who, order)
         parts = {k: _clip_noise(f"partial density {k!r}", v, who, order) for k, v in parts.items()}
 
@@ -257,6 +338,8 @@ class Spectrum:
         f, g, parts = _drop_imaginary(f, g, parts, who, order)
         if not np.any(g > 0):
             raise InputError("density is zero everywhere: no modes")
+        what = "the density integrates (trapezoid rule, imaginary part included) to"
+        atoms, atoms_source = _resolve_atoms(atoms, mode_integral, True, what, who)
 
         theta = f * kelvin_per(unit)
         ms, scale, cutoff_k, fit_theta = _sampled_modeset(theta, g, atoms, low_t, low_t_cutoff, unit, who)
@@ -274,6 +357,8 @@ class Spectrum:
             fit_theta=fit_theta,
             raw_integral=float(np.trapezoid(g, f)),
             modeset=ms,
+            atoms_source=atoms_source,
+            mode_integral=mode_integral,
         )
 
     # --- construction helpers --------------------------------------------------------
@@ -298,6 +383,12 @@ class Spectrum:
     def _parts(self) -> dict:
         return {key[1:]: object.__getattribute__(self, key) for key in self.__slots__}
 
+    def _with(self, **changes) -> "Spectrum":
+        """A copy with some stored parts replaced (no recomputation)."""
+        parts = self._parts()
+        parts.update(changes)
+        return Spectrum._from_parts(**parts)
+
     @classmethod
     def from_modes(
         cls,
@@ -305,7 +396,7 @@ class Spectrum:
         weights=None,
         *,
         unit: str = "THz",
-        atoms: float = 1,
+        atoms: float | None = None,
         partials: Mapping[str, object] | None = None,
         name: str | None = None,
         low_t: str | float = "fit",
@@ -322,13 +413,15 @@ class Spectrum:
         frequencies : array_like — mode frequencies in `unit`; negative ones are
             imaginary modes, excluded with a warning
         weights : array_like, optional — weight of each mode (e.g. q-point weights)
-        unit, atoms, name, low_t, low_t_cutoff : as for :class:`Spectrum`
+        atoms : float, optional — atoms per formula unit; by default read from
+            fractional weights that sum clearly to 3·n (:class:`Spectrum`, Notes); a
+            list without weights or with whole-number weights needs it
+        unit, name, low_t, low_t_cutoff : as for :class:`Spectrum`
         partials : mapping of str to array_like, optional — per-mode weight fractions
             of each species (e.g. eigenvector weights), summing to 1 per mode
         bins : int, optional — histogram bins for display (default from the mode count)
         """
         unit = check_unit(unit)
-        atoms = _check_atoms(atoms)
         low_t = _check_low_t(low_t)
         if low_t == "extrapolate":
             raise InputError("low_t='extrapolate' works on sampled spectra; use 'fit' or a Debye temperature")
@@ -343,6 +436,17 @@ class Spectrum:
         parts = _partial_vectors(partials, "partial weights", f.size, "frequencies")
         if f.size == 0 or not np.any(w > 0):
             raise InputError("no modes given")
+        mode_integral = float(w.sum())
+        if weights is None or np.all(w == np.round(w)):
+            # Counted modes: a q-mesh of N_q points gives 3·atoms·N_q, which does not tell atoms.
+            what = (
+                f"a mode list with whole-number weights or none counts modes ({mode_integral:.6g}), "
+                "3·atoms·N_q for a mesh of N_q q-points, which does not tell the atoms"
+            )
+            atoms, atoms_source = _resolve_atoms(atoms, mode_integral, False, what, who)
+        else:
+            what = "the mode weights sum (imaginary modes included) to"
+            atoms, atoms_source = _resolve_atoms(atoms, mode_integral, True, what, who)
         imag = f < 0
         if imag.all():
             raise InputError("all modes are imaginary (negative frequencies): no real modes")
@@ -381,6 +485,8 @@ class Spectrum:
             fit_theta=fit_theta,
             raw_integral=total_w,
             modeset=ms,
+            atoms_source=atoms_source,
+            mode_integral=mode_integral,
         )
 
     @classmethod
@@ -390,7 +496,7 @@ class Spectrum:
         counts,
         *,
         unit: str = "THz",
-        atoms: float = 1,
+        atoms: float | None = None,
         partials: Mapping[str, object] | None = None,
         name: str | None = None,
         low_t: str | float = "fit",
@@ -406,13 +512,15 @@ class Spectrum:
         edges : array_like — n + 1 increasing bin edges in `unit`; bins below 0
             (imaginary modes) are excluded with a warning
         counts : array_like — n mode counts (any normalisation), ≥ 0
-        unit, atoms, name, low_t : as for :class:`Spectrum`
+        atoms : float, optional — atoms per formula unit; by default read from
+            fractional counts that sum clearly to 3·n (:class:`Spectrum`, Notes);
+            whole-number counts need it
+        unit, name, low_t : as for :class:`Spectrum`
         partials : mapping of str to array_like, optional — per-species counts per bin
         low_t_cutoff : float, optional — in `unit`; default the upper edge of the third
             bin above the first non-empty one
         """
         unit = check_unit(unit)
-        atoms = _check_atoms(atoms)
         low_t = _check_low_t(low_t)
         if low_t == "extrapolate":
             raise InputError("low_t='extrapolate' works on sampled spectra; use 'fit' or a Debye temperature")
@@ -426,6 +534,7 @@ class Spectrum:
             raise InputError("bin edges must increase strictly", index=int(step[0]) + 1)
         parts = _partial_vectors(partials, "partial counts", c.size, "counts")
         order = np.arange(c.size)
+        mode_integral = float(c.sum())
         c = _clip_noise("counts", c, who, order)
         parts = {k: _clip_noise(f"partial counts {k!r}", v, who, order) for k, v in parts.items()}
         if e[-1] <= 0 or not np.any(c[e[1:] > 0] > 0):
@@ -447,6 +556,15 @@ class Spectrum:
             e[0] = max(e[0], 0.0)
         if not np.any(c > 0):
             raise InputError("counts are zero everywhere: no modes")
+        if np.all(c == np.round(c)):
+            what = (
+                f"whole-number counts ({mode_integral:.6g} modes in all) count the modes of a q-mesh, "
+                "3·atoms·N_q for N_q q-points, and do not tell the atoms"
+            )
+            atoms, atoms_source = _resolve_atoms(atoms, mode_integral, False, what, who)
+        else:
+            what = "the counts (imaginary bins included) sum to"
+            atoms, atoms_source = _resolve_atoms(atoms, mode_integral, True, what, who)
         theta = e * kelvin_per(unit)
         total = float(c.sum())
         ms, cutoff_k, fit_theta = _histogram_modeset(theta, c * (3.0 * atoms / total), atoms, low_t, low_t_cutoff, unit)
@@ -465,6 +583,8 @@ class Spectrum:
             fit_theta=fit_theta,
             raw_integral=total,
             modeset=ms,
+            atoms_source=atoms_source,
+            mode_integral=mode_integral,
         )
 
     # --- properties -----------------------------------------------------------------
@@ -491,6 +611,18 @@ class Spectrum:
     def atoms(self) -> float:
         """Atoms per formula unit."""
         return self._atoms
+
+    @property
+    def atoms_source(self) -> str:
+        """How :attr:`atoms` was obtained: "given" (the argument), "file" (an ``# atoms:``
+        line of the file read) or "integral" (the data's clear mode count, :attr:`mode_integral`)."""
+        return self._atoms_source
+
+    @property
+    def mode_integral(self) -> float:
+        """Modes in the data as given, before any repair or normalisation (class Notes):
+        the trapezoid integral over every point, the sum of all counts, or of all weights."""
+        return self._mode_integral
 
     @property
     def modes(self) -> float:
@@ -540,7 +672,7 @@ class Spectrum:
         """The same sampled data with another low-temperature continuation (sampled spectra only)."""
         if self._kind != "sampled":
             raise InputError(f"with_low_t needs sampled data; build this {self._kind} spectrum again instead")
-        return Spectrum(
+        rebuilt = Spectrum(
             self._frequency,
             self._density,
             unit=self._unit,
@@ -550,6 +682,7 @@ class Spectrum:
             low_t=low_t,
             low_t_cutoff=low_t_cutoff,
         )
+        return rebuilt._with(atoms_source=self._atoms_source, mode_integral=self._mode_integral)
 
     # --- moments ----------------------------------------------------------------------
     def moment_debye_temperature(self, n: float) -> float:

@@ -9,6 +9,7 @@ include the zero-point energy.
 from __future__ import annotations
 
 import math
+import numbers
 import warnings
 
 import numpy as np
@@ -27,6 +28,7 @@ __all__ = [
     "free_energy",
     "zero_point_energy",
     "effective_debye_temperature",
+    "atoms_of_data",
     "basis_text",
     "CAUTION",
 ]
@@ -206,7 +208,57 @@ def _thirring_theta(ms: ModeSet, T: np.ndarray) -> np.ndarray:
     return T * y
 
 
-def effective_debye_temperature(temperatures, cv, *, atoms: float = 1.0) -> np.ndarray:
+def atoms_of_data(data, atoms: float | None = None) -> tuple[float, bool]:
+    """Atoms per formula unit of heat-capacity data: the one rule of every function taking them.
+
+    The count stored with the data is ``attrs["atoms"]`` (set by
+    :func:`~modeheat.data.read_heat_capacity`; a column of the frame carries it too).
+    `atoms` None takes the stored count, or 1 when the data carry none; a given
+    `atoms` must equal a stored count.
+
+    Parameters
+    ----------
+    data : DataFrame, Series, array or a list of DataFrames — the heat-capacity data
+    atoms : float, optional — atoms per formula unit asked for
+
+    Returns
+    -------
+    (float, bool)
+        The count, and whether it is known (given or stored) rather than the default 1.
+
+    Raises
+    ------
+    InputError
+        `atoms` is not a positive number, or differs from the stored count (the message
+        names both), or data sets store different counts.
+    """
+    stored: float | None = None
+    holder = ""
+    for k, item in enumerate(data if isinstance(data, (list, tuple)) else [data]):
+        attrs = getattr(item, "attrs", None) or {}
+        value = attrs.get("atoms")
+        if value is None:
+            continue
+        label = attrs.get("name") or f"data set {k}"
+        if stored is not None and not math.isclose(float(value), stored):
+            raise InputError(
+                f"the data sets disagree on the atoms per formula unit: {holder} stores atoms={stored:g}, "
+                f"{label} atoms={float(value):g}"
+            )
+        stored, holder = float(value), label
+    if atoms is None:
+        return (stored, True) if stored is not None else (1.0, False)
+    if isinstance(atoms, bool) or not (isinstance(atoms, numbers.Real) and math.isfinite(atoms) and atoms > 0):
+        raise InputError(f"atoms must be a positive number, not {atoms!r}")
+    if stored is not None and not math.isclose(float(atoms), stored):
+        raise InputError(
+            f"atoms={float(atoms):g} was given but {holder} stores atoms={stored:g} (attrs['atoms'], "
+            "from read_heat_capacity); pass the same count or none"
+        )
+    return float(atoms), True
+
+
+def effective_debye_temperature(temperatures, cv, *, atoms: float | None = None) -> np.ndarray:
     """Effective Debye temperature θ_D(T) in K from a heat capacity.
 
     Solves C_v = 3·atoms·R·D(θ/T) at each temperature, where D is the Debye heat
@@ -216,8 +268,10 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float = 1.0) -> np.n
     Parameters
     ----------
     temperatures : array_like — T in K, > 0
-    cv : array_like — C_v in J/(mol K) per mole of formula units
-    atoms : float — atoms per formula unit
+    cv : array_like — C_v in J/(mol K) per mole of formula units (a column of a
+        :func:`~modeheat.data.read_heat_capacity` frame carries its atom count)
+    atoms : float, optional — atoms per formula unit; by default the count `cv`
+        carries, else 1 (:func:`atoms_of_data`)
 
     Notes
     -----
@@ -225,9 +279,8 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float = 1.0) -> np.n
     dilatation term C_p − C_v and the electronic γT add to the lattice C_v.  Convert
     to C_v and remove the electronic term before asking for a Debye temperature.
     """
+    atoms, _ = atoms_of_data(cv, atoms)
     T, c = np.broadcast_arrays(np.asarray(temperatures, dtype=float), np.asarray(cv, dtype=float))
-    if not atoms > 0:
-        raise InputError(f"atoms must be positive, not {atoms!r}")
     per_mode = c / (3.0 * atoms * R)
     x = special.debye_cv_inverse(per_mode)
     with np.errstate(invalid="ignore", divide="ignore"):

@@ -1,9 +1,7 @@
 """The ``modeheat`` command, in-process and as ``python -m modeheat``, and CSV tables.
 
 Atom counts: tests that are not about them pass ``--atoms`` explicitly (the count used
-to default to 1).  Reading the count from the files needs the atoms inference of the
-backend; its tests are :func:`test_atoms_inferred_per_file` and are skipped until that
-work is merged (see ``_NEEDS_INFERENCE``).
+to default to 1); :func:`test_atoms_inferred_per_file` checks the count read from each file.
 """
 
 from __future__ import annotations
@@ -33,7 +31,6 @@ DEMO = ROOT / "demo_spectra"
 COLUMNS = ["T", "Cv", "S", "U", "F", "theta_D"]
 ONE = ["--atoms", "1"]  # debye_bump.csv holds 3.19 modes, no whole atom count: the count is given
 # The integrator removes this mark once the backend infers atom counts (read_spectrum(atoms=None)).
-_NEEDS_INFERENCE = pytest.mark.skip(reason="needs atoms inference from branch 'atoms' (read_spectrum(atoms=None))")
 thermo_module = importlib.import_module("modeheat.thermo")  # the module; modeheat.thermo is the function
 
 
@@ -184,7 +181,7 @@ def test_low_temperature_continuation_options(tmp_path, capsys):
     table = pd.read_csv(out, comment="#")
     # common practice: θ_D(T → 0) is the Debye temperature of the ω² branch given
     assert table["theta_D"][0] == pytest.approx(250.0, rel=1e-12)
-    expected = thermo(read_spectrum(GOOD, low_t=250.0), [0.0, 1.0, 300.0])
+    expected = thermo(read_spectrum(GOOD, atoms=1, low_t=250.0), [0.0, 1.0, 300.0])
     np.testing.assert_allclose(table.to_numpy(), expected.to_numpy(), rtol=1e-11)
     assert main(["table", str(GOOD), "--temperatures", "1", "--low-t", "off", *ONE]) == 0
     assert main(["table", str(GOOD), "--temperatures", "1", "--low-t-cutoff", "1e9", *ONE]) == 1
@@ -411,7 +408,6 @@ def test_degenerate_spectrum_is_never_a_silent_bad_table(tmp_path, capsys):
 
 
 # --- atom counts --------------------------------------------------------------------------------------
-@_NEEDS_INFERENCE
 def test_atoms_inferred_per_file(tmp_path, capsys):
     """Each file its own count: zorbium lumide holds 6.00 modes (2 atoms), quellium 3.00
     (1 atom); debye_bump.csv's 3.19 modes fit no whole count and that file fails alone."""
@@ -546,7 +542,7 @@ def test_never_overwrites_an_input_file(tmp_path, capsys):
 
 
 def test_write_table_directly(tmp_path):
-    frame = thermo(read_spectrum(GOOD), [10.0, 300.0])
+    frame = thermo(read_spectrum(GOOD, atoms=1), [10.0, 300.0])
     path = tmp_path / "t.csv"
     assert write_table(frame, path) == path
     with pytest.raises(InputError, match="the file exists") as info:

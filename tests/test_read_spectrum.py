@@ -66,7 +66,7 @@ def test_valid_file_reads_silently(case):
 @pytest.mark.parametrize("file", ["utf8_bom.txt", "crlf_line_endings.txt", "semicolons.txt"])
 def test_encoding_and_separator_variants_read_the_same_numbers(file):
     spectrum = read_spectrum(BAD / file)
-    reference = Spectrum([0.0, 1.0, 2.0, 3.0, 4.0], [0.0, 0.5, 2.0, 4.5, 1.0], unit="THz")
+    reference = Spectrum([0.0, 1.0, 2.0, 3.0, 4.0], [0.0, 0.5, 2.0, 4.5, 1.0], unit="THz", atoms=1)
     assert spectrum.unit == "THz"
     np.testing.assert_array_equal(spectrum.frequency, reference.frequency)
     np.testing.assert_array_equal(spectrum.density, reference.density)
@@ -81,13 +81,13 @@ def test_which_comment_is_a_header(tmp_path):
     path = tmp_path / "comments.txt"
     rows = "0 0 0\n1 1 2\n2 4 3\n"
     path.write_text("# frequency (THz) A B\n" + rows, encoding="utf-8")
-    assert set(read_spectrum(path).partials) == {"A", "B"}
+    assert set(read_spectrum(path, atoms=1).partials) == {"A", "B"}
     # A blank line, or a field count unlike the data's, keeps a comment a comment.
     path.write_text("# frequency (THz) A B\n\n" + rows, encoding="utf-8")
     with pytest.raises(InputError, match="the frequency unit is not given"):
-        read_spectrum(path)
+        read_spectrum(path, atoms=1)
     path.write_text("# invented data, three columns\n" + rows, encoding="utf-8")
-    assert set(read_spectrum(path, unit="THz").partials) == {"column 1", "column 2"}
+    assert set(read_spectrum(path, atoms=1, unit="THz").partials) == {"column 1", "column 2"}
 
 
 def test_spectrum_error_is_mapped_to_the_file_line(tmp_path):
@@ -123,8 +123,8 @@ def test_header_with_units_total_and_partials():
 
 
 def test_total_column_is_used_rather_than_the_sum():
-    default = read_spectrum(GOOD)
-    total_only = read_spectrum(GOOD, columns=["frequency", "TOTAL"])
+    default = read_spectrum(GOOD, atoms=1)
+    total_only = read_spectrum(GOOD, atoms=1, columns=["frequency", "TOTAL"])
     np.testing.assert_array_equal(default.density, total_only.density)
     assert total_only.partials == {}
 
@@ -132,30 +132,30 @@ def test_total_column_is_used_rather_than_the_sum():
 def test_without_total_column_the_sum_is_the_total(tmp_path):
     path = tmp_path / "two.csv"
     path.write_text("frequency (THz), A, B\n0, 0, 0\n1, 1, 3\n2, 4, 2\n3, 1, 1\n", encoding="utf-8")
-    spectrum = read_spectrum(path, low_t="off")
+    spectrum = read_spectrum(path, atoms=1, low_t="off")
     assert set(spectrum.partials) == {"A", "B"}
-    summed = Spectrum([0, 1, 2, 3], [0, 4, 6, 2], unit="THz", low_t="off")
+    summed = Spectrum([0, 1, 2, 3], [0, 4, 6, 2], unit="THz", atoms=1, low_t="off")
     np.testing.assert_allclose(spectrum.density, summed.density, rtol=1e-15)
 
 
 def test_total_by_name_and_forced_sum():
-    named = read_spectrum(GOOD, total="a")
+    named = read_spectrum(GOOD, atoms=1, total="a")
     assert set(named.partials) == {"total", "B"}
-    by_columns = read_spectrum(GOOD, columns=[0, 2])
+    by_columns = read_spectrum(GOOD, atoms=1, columns=[0, 2])
     np.testing.assert_array_equal(named.density, by_columns.density)
 
-    summed = read_spectrum(GOOD, columns=["frequency", "A", "B"], total="sum")
-    np.testing.assert_allclose(summed.density, read_spectrum(GOOD).density, rtol=0, atol=1e-4)
+    summed = read_spectrum(GOOD, atoms=1, columns=["frequency", "A", "B"], total="sum")
+    np.testing.assert_allclose(summed.density, read_spectrum(GOOD, atoms=1).density, rtol=0, atol=1e-4)
     with pytest.raises(InputError, match="total='sum' would add the 'total' column"):
-        read_spectrum(GOOD, total="sum")
+        read_spectrum(GOOD, atoms=1, total="sum")
     with pytest.raises(InputError, match="no density column named 'C'; the density columns are total, A, B"):
-        read_spectrum(GOOD, total="C")
+        read_spectrum(GOOD, atoms=1, total="C")
 
 
 def test_columns_by_index_and_name():
-    spectrum = read_spectrum(GOOD, columns=[0, 3, 2])
+    spectrum = read_spectrum(GOOD, atoms=1, columns=[0, 3, 2])
     assert set(spectrum.partials) == {"B", "A"}
-    assert read_spectrum(GOOD, columns=["Frequency", "b"]).partials == {}
+    assert read_spectrum(GOOD, atoms=1, columns=["Frequency", "b"]).partials == {}
 
 
 @pytest.mark.parametrize(
@@ -170,7 +170,7 @@ def test_columns_by_index_and_name():
 )
 def test_bad_column_choice(columns, fragment):
     with pytest.raises(InputError, match=fragment.replace("(", r"\(").replace(")", r"\)")) as info:
-        read_spectrum(GOOD, columns=columns)
+        read_spectrum(GOOD, atoms=1, columns=columns)
     assert str(GOOD) in str(info.value)
 
 
@@ -178,17 +178,17 @@ def test_columns_by_name_need_a_header(tmp_path):
     path = tmp_path / "bare.txt"
     path.write_text("0 0 0\n1 1 2\n2 4 3\n", encoding="utf-8")
     with pytest.raises(InputError, match="no header row, so choose columns by 0-based index"):
-        read_spectrum(path, unit="THz", columns=["frequency", "column 1"])
-    assert read_spectrum(path, unit="THz", columns=[0, 2]).partials == {}
+        read_spectrum(path, atoms=1, unit="THz", columns=["frequency", "column 1"])
+    assert read_spectrum(path, atoms=1, unit="THz", columns=[0, 2]).partials == {}
 
 
 # --- units ---------------------------------------------------------------------------------------
 def test_unit_argument_must_agree_with_header():
-    assert read_spectrum(GOOD, unit="thz").unit == "THz"
+    assert read_spectrum(GOOD, atoms=1, unit="thz").unit == "THz"
     with pytest.raises(InputError, match=r"debye_bump\.csv, line 6: the header gives the frequencies in THz but"):
-        read_spectrum(GOOD, unit="meV")
+        read_spectrum(GOOD, atoms=1, unit="meV")
     with pytest.raises(InputError, match="unknown frequency unit 'parsec'"):
-        read_spectrum(GOOD, unit="parsec")
+        read_spectrum(GOOD, atoms=1, unit="parsec")
 
 
 def test_headerless_file_needs_unit(tmp_path):
@@ -213,7 +213,7 @@ def test_same_spectrum_in_three_units_gives_equal_tables(tmp_path):
         ratio = kelvin_per("THz") / kelvin_per(unit)
         path = tmp_path / f"spectrum_{unit}.txt"
         _write(path, f_thz * ratio, g_thz / ratio, unit, sep)
-        tables.append(thermo(read_spectrum(path), TEMPERATURES))
+        tables.append(thermo(read_spectrum(path, atoms=1), TEMPERATURES))
     for other in tables[1:]:
         for column in ("Cv", "S", "U", "F", "theta_D"):
             reference = tables[0][column].to_numpy()
