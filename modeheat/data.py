@@ -86,7 +86,7 @@ from scipy import constants as _constants
 from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
 from .thermo import CAUTION, basis_text
-from .units import FREQUENCY_UNITS, check_unit
+from .units import FREQUENCY_UNITS, KELVIN_RANGE, check_unit
 
 __all__ = [
     "read_spectrum",
@@ -630,6 +630,8 @@ class _CpUnit:
 def _cp_unit(text: str) -> _CpUnit | None:
     """Parse a heat-capacity unit such as ``J/(mol K)``, ``mJ mol-1 K-1`` or ``J/g/K``; None if unknown."""
     s = str(text).strip().lower()
+    if not s:
+        return None
     for mark in ("·", "⋅", "*"):
         s = s.replace(mark, " ")
     s = s.replace("⁻¹", "-1").replace("^-1", "-1").replace("mol atoms", "mol-atoms").replace("mol atom", "mol-atom")
@@ -918,11 +920,18 @@ def _of_temperature(value, T: np.ndarray, label: str) -> np.ndarray:
 
 
 def _dilatation(T, c, alpha, bulk_modulus, molar_volume, gruneisen, A, who):
-    T = np.asarray(T, dtype=float)
-    c = np.asarray(c, dtype=float)
+    try:
+        T = np.asarray(T, dtype=float)
+        c = np.asarray(c, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(f"{who}: temperatures and heat capacities must be numbers") from None
+    if T.shape != c.shape and T.ndim and c.ndim:
+        raise InputError(f"{who}: {c.size} heat capacities for {T.size} temperatures; give one per temperature")
     T, c = np.broadcast_arrays(T, c)
-    if np.any(~np.isfinite(T) | (T < 0)):
-        raise InputError(f"{who}: temperatures must be finite and ≥ 0 K")
+    if np.any(~np.isfinite(T) | (T < 0) | (T > KELVIN_RANGE[1])):
+        raise InputError(f"{who}: temperatures must be finite, ≥ 0 K and at most {KELVIN_RANGE[1]:g} K")
+    if np.any(~np.isfinite(c)):
+        raise InputError(f"{who}: heat capacities must be finite")
     identity = bulk_modulus is not None or molar_volume is not None
     forms = [identity, gruneisen is not None, A is not None]
     if sum(forms) != 1:

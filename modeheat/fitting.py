@@ -33,7 +33,7 @@ from ._engine import ModeSet
 from .errors import InputError, ModeheatWarning
 from .models import Component, Dilatation, Mixture
 from .thermo import CAUTION, effective_debye_temperature, heat_capacity, thermo
-from .units import R
+from .units import KELVIN_RANGE, R
 
 __all__ = [
     "FitWarning",
@@ -92,14 +92,15 @@ def _points(data, tmin: float | None, tmax: float | None) -> _Points:
             values = frame[cols].to_numpy(dtype=float)
         except (TypeError, ValueError):
             raise InputError(f"{label}: the columns {', '.join(cols)} must hold numbers") from None
-        bad = ~np.isfinite(values).all(axis=1) | ~(values[:, 0] > 0)
+        lo, hi = KELVIN_RANGE
+        bad = ~np.isfinite(values).all(axis=1) | ~((values[:, 0] >= lo) & (values[:, 0] <= hi))
         if with_sigma[k]:
             bad |= ~(values[:, 2] > 0)
         if bad.any():
             i = int(np.flatnonzero(bad)[0])
             raise InputError(
-                f"{label}: row {i} ({', '.join(f'{c} = {v:g}' for c, v in zip(cols, values[i]))}) needs T > 0, "
-                "finite values and sigma > 0"
+                f"{label}: row {i} ({', '.join(f'{c} = {v:g}' for c, v in zip(cols, values[i]))}) needs T in "
+                f"{lo:g}–{hi:g} K, finite values and sigma > 0"
             )
         keep = np.ones(len(values), dtype=bool)
         if tmin is not None:
@@ -246,7 +247,7 @@ def low_temperature_fit(
     Raises
     ------
     InputError
-        Fewer points in the window than terms + 1, or a fitted β ≤ 0 (no Debye
+        Fewer points, or fewer distinct temperatures, in the window than terms + 1, or a fitted β ≤ 0 (no Debye
         temperature exists: the window may reach above the T³ region, or the data
         may be dominated by another term).
     """
@@ -268,6 +269,14 @@ def low_temperature_fit(
         raise InputError(
             f"only {n} point(s) in the window {_window_text(tmin, tmax)}: fitting {p} terms "
             f"({', '.join(order)}) needs at least {p + 1}"
+        )
+    distinct = np.unique(T).size
+    if distinct < p + 1:
+        # The terms are powers of T: at fewer temperatures they cannot be told apart, and with
+        # exactly p the fit passes through the means and its standard errors mean nothing.
+        raise InputError(
+            f"the {n} points in the window {_window_text(tmin, tmax)} share {distinct} temperature(s): fitting "
+            f"{p} terms ({', '.join(order)}) needs at least {p + 1} distinct ones"
         )
     y = pts.C / T
     X = np.stack([T ** _LOW_T_TERMS[t] for t in order], axis=1)

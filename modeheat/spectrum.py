@@ -37,7 +37,7 @@ from scipy import constants as _c
 
 from ._engine import DebyeBranch, ModeSet
 from .errors import InputError, SpectrumWarning
-from .units import check_unit, kelvin_per
+from .units import KELVIN_RANGE, check_kelvin, check_unit, kelvin_per
 
 __all__ = ["Spectrum", "ReducedDensity", "debye_temperature_from_sound"]
 
@@ -129,6 +129,61 @@ def _check_atoms(atoms) -> float:
     if not (math.isfinite(a) and a > 0):
         raise InputError(f"atoms must be a positive number, not {atoms!r}")
     return a
+
+
+_FINEST_STEP = 1e-9  # sampled frequencies above 0 but below this fraction of the highest are unresolvable
+
+
+def _check_frequency_range(name: str, values: np.ndarray, unit: str, *, sampled: bool) -> None:
+    """Frequencies whose temperature equivalents modeheat can evaluate (K range, grid resolution).
+
+    For a sampled grid a positive frequency below 1e-9 of the highest one is an error too:
+    a grid step that fine underflows in the ω² interpolation and resolves nothing.
+    """
+    theta = values * kelvin_per(unit)
+    lo, hi = KELVIN_RANGE
+    top = int(np.argmax(theta))
+    if theta[top] > hi:
+        raise InputError(
+            f"{name} {values[top]:g} {unit} is {theta[top]:.3g} K, above the {hi:g} K modeheat can evaluate",
+            index=top,
+        )
+    floor = max(lo, _FINEST_STEP * theta[top]) if sampled else lo
+    tiny = np.flatnonzero((theta > 0) & (theta < floor))
+    if tiny.size:
+        i = int(tiny[0])
+        why = f"below {_FINEST_STEP:g} of the highest frequency" if sampled and floor > lo else f"below {lo:g} K"
+        raise InputError(
+            f"{name} {values[i]:g} {unit} is above 0 but {why}, too fine to resolve; write 0 or drop the row",
+            index=i,
+        )
+
+
+def _normalised(name: str, values: np.ndarray) -> tuple[np.ndarray, int]:
+    """`values` divided by a power of two near their peak (exact), and that exponent.
+
+    Normalising first keeps integrals of tiny or huge densities, weights and counts
+    from underflowing or overflowing; a peak below the smallest normal double carries
+    too few digits to normalise.
+    """
+    peak = float(np.max(np.abs(values))) if values.size else 0.0
+    if peak == 0.0:
+        return values, 0
+    if peak < np.finfo(float).tiny:
+        raise InputError(
+            f"every {name} value is subnormal (at most {peak:.3g}), too small to normalise with any "
+            "precision; multiply the column by a large factor (the normalisation does not depend on it)"
+        )
+    exponent = math.frexp(peak)[1]
+    return np.ldexp(values, -exponent), exponent
+
+
+def _scaled_back(name: str, value: float, exponent: int) -> float:
+    """`value`·2^exponent, the raw integral in the units given; an InputError if it overflows."""
+    try:
+        return math.ldexp(value, exponent)
+    except OverflowError:
+        raise InputError(f"the {name} values are so large that their total overflows; divide the column by a large factor") from None
 
 
 def _label(name) -> str:
@@ -241,6 +296,8 @@ class Spectrum:
         g = _vector("density", density)
         if g.shape != f.shape:
             raise InputError(f"density has {g.size} values but frequency has {f.size}")
+        if f.size:
+            _check_frequency_range("frequency", f, unit, sampled=True)
         parts = _partial_vectors(partials, "partial density", f.size, "frequency")
         if f.size < 2:
             raise InputError(f"a sampled spectrum needs at least 2 points, got {f.size}")
@@ -257,6 +314,15 @@ class Spectrum:
         f, g, parts = _drop_imaginary(f, g, parts, who, order)
         if not np.any(g > 0):
             raise InputError("density is zero everywhere: no modes")
+        if f.size < 2:
+            raise InputError(f"every row has the same frequency ({f[0]:g} {unit}): a sampled spectrum needs 2 distinct ones")
+        if low_t != "off" and not np.any(g[f > 0] > 0):
+            raise InputError(
+                "the density is zero at every frequency above 0: with the ω² low-temperature continuation a "
+                "density at ω = 0 alone carries no modes (low_t='off' reads the data as they are)"
+            )
+        g, exponent = _normalised("density", g)
+        parts = {k: np.ldexp(v, -exponent) for k, v in parts.items()}
 
         theta = f * kelvin_per(unit)
         ms, scale, cutoff_k, fit_theta = _sampled_modeset(theta, g, atoms, low_t, low_t_cutoff, unit, who)
@@ -272,7 +338,7 @@ class Spectrum:
             low_t=low_t,
             cutoff_k=cutoff_k,
             fit_theta=fit_theta,
-            raw_integral=float(np.trapezoid(g, f)),
+            raw_integral=_scaled_back("density", float(np.trapezoid(g, f)), exponent),
             modeset=ms,
         )
 
@@ -343,6 +409,8 @@ class Spectrum:
         parts = _partial_vectors(partials, "partial weights", f.size, "frequencies")
         if f.size == 0 or not np.any(w > 0):
             raise InputError("no modes given")
+        _check_frequency_range("frequency", f, unit, sampled=False)
+        w, exponent = _normalised("weight", w)
         imag = f < 0
         if imag.all():
             raise InputError("all modes are imaginary (negative frequencies): no real modes")
@@ -379,7 +447,7 @@ class Spectrum:
             low_t=low_t,
             cutoff_k=cutoff_k,
             fit_theta=fit_theta,
-            raw_integral=total_w,
+            raw_integral=_scaled_back("weight", total_w, exponent),
             modeset=ms,
         )
 
@@ -424,6 +492,7 @@ class Spectrum:
         step = np.flatnonzero(np.diff(e) <= 0)
         if step.size:
             raise InputError("bin edges must increase strictly", index=int(step[0]) + 1)
+        _check_frequency_range("bin edge", e, unit, sampled=True)
         parts = _partial_vectors(partials, "partial counts", c.size, "counts")
         order = np.arange(c.size)
         c = _clip_noise("counts", c, who, order)
@@ -447,6 +516,8 @@ class Spectrum:
             e[0] = max(e[0], 0.0)
         if not np.any(c > 0):
             raise InputError("counts are zero everywhere: no modes")
+        c, exponent = _normalised("count", c)
+        parts = {k: np.ldexp(v, -exponent) for k, v in parts.items()}
         theta = e * kelvin_per(unit)
         total = float(c.sum())
         ms, cutoff_k, fit_theta = _histogram_modeset(theta, c * (3.0 * atoms / total), atoms, low_t, low_t_cutoff, unit)
@@ -463,7 +534,7 @@ class Spectrum:
             low_t=low_t,
             cutoff_k=cutoff_k,
             fit_theta=fit_theta,
-            raw_integral=total,
+            raw_integral=_scaled_back("count", total, exponent),
             modeset=ms,
         )
 
@@ -603,7 +674,7 @@ def _check_low_t(low_t):
         raise InputError(f"low_t must be 'fit', 'off' or a Debye temperature in K, not {low_t!r}") from None
     if not (math.isfinite(value) and value > 0):
         raise InputError(f"a Debye temperature for low_t must be positive, not {low_t!r}")
-    return value
+    return check_kelvin("low_t", value)
 
 
 def _merge_duplicates(f, g, parts, who):
@@ -696,7 +767,7 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
         n_c = below * scale
     else:
         n_c = 3.0 * atoms * (wc / low_t) ** 3
-        if n_c >= 3.0 * atoms:
+        if n_c >= 3.0 * atoms or not w.sum() > 0:
             raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
         scale = (3.0 * atoms - n_c) / float(w.sum())
     branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()
@@ -833,7 +904,7 @@ def _histogram_modeset(theta, counts, atoms, low_t, cutoff, unit):
         n_c = below
     else:
         n_c = 3.0 * atoms * (wc / low_t) ** 3
-        if n_c >= 3.0 * atoms:
+        if n_c >= 3.0 * atoms or not w.sum() > 0:
             raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
         w = w * ((3.0 * atoms - n_c) / w.sum())
     branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()
