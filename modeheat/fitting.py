@@ -63,6 +63,10 @@ class _Points:
     names: tuple[str, ...]
 
 
+_SIGMA_FLOOR = 1e-30  # J/(mol K): smallest uncertainty accepted
+_SIGMA_RELATIVE = 1e-12  # smallest uncertainty relative to the largest heat capacity of its set
+
+
 def _data_sets(data) -> list[pd.DataFrame]:
     if isinstance(data, pd.DataFrame):
         return [data]
@@ -95,12 +99,14 @@ def _points(data, tmin: float | None, tmax: float | None) -> _Points:
         lo, hi = KELVIN_RANGE
         bad = ~np.isfinite(values).all(axis=1) | ~((values[:, 0] >= lo) & (values[:, 0] <= hi))
         if with_sigma[k]:
-            bad |= ~(values[:, 2] > 0)
+            # An uncertainty this far below the data scale would overflow the weights T/σ.
+            floor = max(_SIGMA_FLOOR, _SIGMA_RELATIVE * float(np.max(np.abs(values[:, 1]), initial=0.0)))
+            bad |= ~(values[:, 2] >= floor)
         if bad.any():
             i = int(np.flatnonzero(bad)[0])
             raise InputError(
                 f"{label}: row {i} ({', '.join(f'{c} = {v:g}' for c, v in zip(cols, values[i]))}) needs T in "
-                f"{lo:g}–{hi:g} K, finite values and sigma > 0"
+                f"{lo:g}–{hi:g} K, finite values and sigma ≥ {_SIGMA_FLOOR:g} J/(mol K) and ≥ {_SIGMA_RELATIVE:g} of the largest C"
             )
         keep = np.ones(len(values), dtype=bool)
         if tmin is not None:
@@ -942,10 +948,10 @@ def _grid(ms: ModeSet, temperatures) -> np.ndarray:
     theta0 = ms.low_temperature_theta()
     if 0 < theta0 < math.inf:
         lows.append(theta0)
-    if np.sum(ms.weight) >= floor:
+    if ms.weight.size and np.sum(ms.weight) >= floor:
         order = np.argsort(ms.theta)
         cum = np.cumsum(ms.weight[order])
-        lows.append(float(ms.theta[order][np.searchsorted(cum, floor)]))
+        lows.append(float(ms.theta[order][min(int(np.searchsorted(cum, floor)), cum.size - 1)]))
     lows += [getattr(b, "theta_low", 0.0) or b.theta_max for b in ms.branches if b.modes >= floor]
     return np.geomspace(1e-3 * min(lows), 3.0 * ms.theta_max, 400)
 

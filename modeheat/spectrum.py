@@ -137,10 +137,12 @@ _FINEST_STEP = 1e-9  # sampled frequencies above 0 but below this fraction of th
 def _check_frequency_range(name: str, values: np.ndarray, unit: str, *, sampled: bool) -> None:
     """Frequencies whose temperature equivalents modeheat can evaluate (K range, grid resolution).
 
-    For a sampled grid a positive frequency below 1e-9 of the highest one is an error too:
+    Imaginary (negative) frequencies count by their size.  For a sampled grid a positive
+    frequency below 1e-9 of the highest one is an error too:
     a grid step that fine underflows in the ω² interpolation and resolves nothing.
     """
-    theta = values * kelvin_per(unit)
+    with np.errstate(over="ignore"):  # an overflow to inf is caught just below
+        theta = np.abs(values) * kelvin_per(unit)
     lo, hi = KELVIN_RANGE
     top = int(np.argmax(theta))
     if theta[top] > hi:
@@ -149,7 +151,7 @@ def _check_frequency_range(name: str, values: np.ndarray, unit: str, *, sampled:
             index=top,
         )
     floor = max(lo, _FINEST_STEP * theta[top]) if sampled else lo
-    tiny = np.flatnonzero((theta > 0) & (theta < floor))
+    tiny = np.flatnonzero((values > 0) & (theta < floor))
     if tiny.size:
         i = int(tiny[0])
         why = f"below {_FINEST_STEP:g} of the highest frequency" if sampled and floor > lo else f"below {lo:g} K"
@@ -410,6 +412,8 @@ class Spectrum:
         if f.size == 0 or not np.any(w > 0):
             raise InputError("no modes given")
         _check_frequency_range("frequency", f, unit, sampled=False)
+        if not np.any(w[f > 0] > 0):
+            raise InputError("every mode with weight has zero or negative frequency: no real modes")
         w, exponent = _normalised("weight", w)
         imag = f < 0
         if imag.all():
