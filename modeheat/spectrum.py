@@ -46,6 +46,8 @@ _GAUSS = np.polynomial.legendre.leggauss(4)
 _MIN_MODES_FOR_FIT = 200
 _FIT_MODES = 20
 _FIT_FRACTION = 1e-4
+_ATOMS = (1e-6, 1e9)  # atoms per formula unit: beyond any real formula unit, and 3·atoms·θ³ stays finite
+_FINEST_STEP = 1e-9  # sampled frequencies above 0 but below this fraction of the highest are unresolvable
 
 
 @dataclass(frozen=True)
@@ -128,10 +130,11 @@ def _check_atoms(atoms) -> float:
         raise InputError(f"atoms must be a positive number, not {atoms!r}") from None
     if not (math.isfinite(a) and a > 0):
         raise InputError(f"atoms must be a positive number, not {atoms!r}")
+    if not _ATOMS[0] <= a <= _ATOMS[1]:
+        raise InputError(f"atoms = {a:g} per formula unit is outside {_ATOMS[0]:g}–{_ATOMS[1]:g}")
     return a
 
 
-_FINEST_STEP = 1e-9  # sampled frequencies above 0 but below this fraction of the highest are unresolvable
 
 
 def _check_frequency_range(name: str, values: np.ndarray, unit: str, *, sampled: bool) -> None:

@@ -180,7 +180,7 @@ def thermo(source, temperatures, *, per: str = "formula", molar_mass: float | No
     theta = _lattice_theta(ms, T, r["cv_lattice"])
     missing = np.count_nonzero(np.isnan(theta))
     if missing:
-        why = "the source has no vibrational modes" if ms.modes <= 0 else "the lattice C_v admits none there"
+        why = "the source has no vibrational modes" if ms.modes <= 0 else "the lattice C_v cannot be inverted there"
         warnings.warn(
             f"no effective Debye temperature at {missing} of {T.size} temperature(s) ({why}): theta_D is NaN",
             NoDebyeTemperatureWarning,
@@ -233,10 +233,12 @@ def _thirring_theta(ms: ModeSet, T: np.ndarray) -> np.ndarray:
     e = np.array([1 / 12, -1 / 240, 1 / 6048, -1 / 172800])
     deficit = sum(e[j] * moments[j] / T ** (2 * j + 2) for j in range(4))
     y = np.sqrt(deficit / a[0])
-    for _ in range(4):
-        g = sum(a[j] * y ** (2 * j + 2) for j in range(4)) - deficit
-        dg = sum((2 * j + 2) * a[j] * y ** (2 * j + 1) for j in range(4))
-        y = y - g / dg
+    # A deficit that underflows (absurdly few modes) gives y = 0 and 0/0: NaN, which thermo warns about.
+    with np.errstate(invalid="ignore", divide="ignore"):
+        for _ in range(4):
+            g = sum(a[j] * y ** (2 * j + 2) for j in range(4)) - deficit
+            dg = sum((2 * j + 2) * a[j] * y ** (2 * j + 1) for j in range(4))
+            y = y - g / dg
     return T * y
 
 
@@ -274,7 +276,7 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float = 1.0) -> np.n
         raise InputError(f"cv has {c.size} value(s) but temperatures has {T.size}")
     bad = np.flatnonzero(~np.isfinite(c))
     if bad.size:
-        raise InputError(f"cv is {c[bad[0]]!r}, not a finite number", index=int(bad[0]))
+        raise InputError(f"cv is {float(c[bad[0]])!r}, not a finite number", index=int(bad[0]))
     if not (isinstance(atoms, (int, float, np.number)) and math.isfinite(atoms) and atoms > 0):
         raise InputError(f"atoms must be a positive number, not {atoms!r}")
     per_mode = c / (3.0 * atoms * R)
