@@ -37,7 +37,7 @@ from scipy import constants as _c
 
 from ._engine import DebyeBranch, ModeSet
 from .errors import InputError, SpectrumWarning
-from .units import KELVIN_RANGE, check_kelvin, check_unit, kelvin_per
+from .units import ATOMS_RANGE, KELVIN_RANGE, check_kelvin, check_unit, kelvin_per
 
 __all__ = ["Spectrum", "ReducedDensity", "debye_temperature_from_sound"]
 
@@ -46,7 +46,6 @@ _GAUSS = np.polynomial.legendre.leggauss(4)
 _MIN_MODES_FOR_FIT = 200
 _FIT_MODES = 20
 _FIT_FRACTION = 1e-4
-_ATOMS = (1e-6, 1e9)  # atoms per formula unit: beyond any real formula unit, and 3·atoms·θ³ stays finite
 _FINEST_STEP = 1e-9  # sampled frequencies above 0 but below this fraction of the highest are unresolvable
 
 
@@ -130,8 +129,8 @@ def _check_atoms(atoms) -> float:
         raise InputError(f"atoms must be a positive number, not {atoms!r}") from None
     if not (math.isfinite(a) and a > 0):
         raise InputError(f"atoms must be a positive number, not {atoms!r}")
-    if not _ATOMS[0] <= a <= _ATOMS[1]:
-        raise InputError(f"atoms = {a:g} per formula unit is outside {_ATOMS[0]:g}–{_ATOMS[1]:g}")
+    if not ATOMS_RANGE[0] <= a <= ATOMS_RANGE[1]:
+        raise InputError(f"atoms = {a:g} per formula unit is outside {ATOMS_RANGE[0]:g}–{ATOMS_RANGE[1]:g}")
     return a
 
 

@@ -8,7 +8,6 @@ include the zero-point energy.
 
 from __future__ import annotations
 
-import math
 import warnings
 
 import numpy as np
@@ -17,7 +16,7 @@ import pandas as pd
 from . import special
 from ._engine import ModeSet
 from .errors import InputError, ModeheatError, NoDebyeTemperatureWarning
-from .units import KELVIN_RANGE, R
+from .units import ATOMS_RANGE, KELVIN_RANGE, R
 
 __all__ = [
     "thermo",
@@ -228,8 +227,8 @@ def _thirring_theta(ms: ModeSet, T: np.ndarray) -> np.ndarray:
     _, coeffs = special._series_coefficients(3)
     a = -coeffs[::-1][1:5]  # 1 − C_D/C_max = Σ a_j x^(2j), j = 1..4
     moments = [ms.moment(2 * j) for j in range(1, 5)]
-    deficit = sum(a[j] * moments[j] / T ** (2 * j + 2) for j in range(4))
-    # The same series for a single Einstein mode: 1 − C_E = x²/12 − x⁴/240 + x⁶/6048 − …
+    # 1 − C/C_max of the modes from their moments, by the series of one Einstein mode:
+    # 1 − C_E = x²/12 − x⁴/240 + x⁶/6048 − …
     e = np.array([1 / 12, -1 / 240, 1 / 6048, -1 / 172800])
     deficit = sum(e[j] * moments[j] / T ** (2 * j + 2) for j in range(4))
     y = np.sqrt(deficit / a[0])
@@ -259,7 +258,7 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float = 1.0) -> np.n
     ------
     InputError
         Temperatures outside 1e-12–1e12 K (:data:`~modeheat.units.KELVIN_RANGE`),
-        non-finite heat capacities, lengths that differ, or atoms not a positive number.
+        non-finite heat capacities, lengths that differ, or atoms outside 1e-6–1e9.
 
     Notes
     -----
@@ -267,18 +266,21 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float = 1.0) -> np.n
     dilatation term C_p − C_v and the electronic γT add to the lattice C_v.  Convert
     to C_v and remove the electronic term before asking for a Debye temperature.
     """
-    T = _temperatures(temperatures, zero=False)
     try:
-        c = np.atleast_1d(np.asarray(cv, dtype=float))
+        T, c = np.asarray(temperatures, dtype=float), np.asarray(cv, dtype=float)
     except (TypeError, ValueError):
-        raise InputError(f"cv must be numbers in J/(mol K), not {cv!r}") from None
-    if c.shape != T.shape:
-        raise InputError(f"cv has {c.size} value(s) but temperatures has {T.size}")
-    bad = np.flatnonzero(~np.isfinite(c))
+        raise InputError("temperatures and cv must be numbers (K and J/(mol K))") from None
+    try:
+        T, c = np.broadcast_arrays(T, c)
+    except ValueError:
+        raise InputError(f"cv has {c.size} value(s) but temperatures has {T.size}") from None
+    _temperatures(T.ravel(), zero=False)
+    bad = np.flatnonzero(~np.isfinite(c.ravel()))
     if bad.size:
-        raise InputError(f"cv is {float(c[bad[0]])!r}, not a finite number", index=int(bad[0]))
-    if not (isinstance(atoms, (int, float, np.number)) and math.isfinite(atoms) and atoms > 0):
-        raise InputError(f"atoms must be a positive number, not {atoms!r}")
+        raise InputError(f"cv is {float(c.ravel()[bad[0]])!r}, not a finite number", index=int(bad[0]))
+    lo, hi = ATOMS_RANGE
+    if not (isinstance(atoms, (int, float, np.number)) and lo <= atoms <= hi):
+        raise InputError(f"atoms must be a number of atoms per formula unit in {lo:g}–{hi:g}, not {atoms!r}")
     per_mode = c / (3.0 * atoms * R)
     theta = T * special.debye_cv_inverse(per_mode)
     above = np.count_nonzero(per_mode >= 1)

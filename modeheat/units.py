@@ -16,6 +16,7 @@ __all__ = [
     "R",
     "FREQUENCY_UNITS",
     "KELVIN_RANGE",
+    "ATOMS_RANGE",
     "kelvin_per",
     "to_kelvin",
     "from_kelvin",
@@ -39,6 +40,10 @@ FREQUENCY_UNITS: dict[str, float] = {
 #: solid (nuclear Schottky levels ~1e-6 K, phonons < 1e4 K), and narrow enough that the
 #: powers θ^±10 and x = θ/T the numerics form stay finite and normal in double precision.
 KELVIN_RANGE: tuple[float, float] = (1e-12, 1e12)
+
+#: Atoms per formula unit modeheat accepts: beyond any real formula unit on both sides,
+#: and narrow enough that 3·atoms·R and the per-mode heat capacities stay finite.
+ATOMS_RANGE: tuple[float, float] = (1e-6, 1e9)
 
 _ALIASES = {
     "k": "K",

@@ -1,9 +1,9 @@
 """A large one-off fuzz campaign over the targets of tests/test_fuzz.py (not part of the suite).
 
 Runs test_fuzz.py with every example count multiplied by ``--scale`` and, instead of
-stopping at the first surprise, tallies the outcome of every call: ok, warned (NaN or
-inf with a modeheat warning), rejected (a ModeheatError) and each unexpected exception
-or unwarned NaN, which are printed by kind.  Usage, from the repository root::
+stopping at the first surprise, tallies the outcome of every call: ok, warned (NaN with
+a NoDebyeTemperatureWarning), rejected (a ModeheatError) and each unexpected exception
+or unwarned NaN, which are printed by kind with the modeheat line that raised.  Usage, from the repository root::
 
     python tests/fuzz_campaign.py --scale 5
 """

@@ -1,7 +1,8 @@
 """Strategies and the outcome check shared by tests/test_fuzz.py and tests/fuzz_campaign.py.
 
 Not a test file.  The guarantee every fuzz target checks: a call either returns finite
-results (NaN or ±inf only with a modeheat warning, where documented) or raises a
+results (NaN only where documented, with its NoDebyeTemperatureWarning; ±inf only as a documented
+limit, e.g. θ_D(0) = ∞ of a gapped spectrum) or raises a
 :class:`~modeheat.errors.ModeheatError`; never another exception type, never a numpy
 RuntimeWarning.  The generated files and values are invented test shapes.
 """
@@ -21,12 +22,13 @@ from hypothesis import HealthCheck, settings
 from hypothesis import strategies as st
 
 import modeheat as mh
-from modeheat.errors import ModeheatError, ModeheatWarning
+from modeheat.errors import ModeheatError, NoDebyeTemperatureWarning
 
 __all__ = [
     "examples",
     "UnexpectedOutcome",
     "outcome",
+    "checked_outcome",
     "dos_files",
     "cp_files",
     "write",
@@ -57,7 +59,7 @@ def examples(n: int) -> settings:
 
 
 class UnexpectedOutcome(AssertionError):
-    """A non-finite result without a modeheat warning."""
+    """A NaN result without a NoDebyeTemperatureWarning."""
 
 
 # Result fields documented to be NaN in some cases (their docstrings say when).
@@ -91,14 +93,14 @@ def _values(result) -> list[np.ndarray]:
     return []
 
 
-def outcome(call, *, allow_inf: bool = True) -> str:
+def outcome(call) -> str:
     """:func:`checked_outcome`; in a campaign, every outcome is logged and surprises do not raise."""
     if _CAMPAIGN_LOG is None:
-        return checked_outcome(call, allow_inf=allow_inf)
+        return checked_outcome(call)
     try:
-        kind = checked_outcome(call, allow_inf=allow_inf)
+        kind = checked_outcome(call)
     except Exception as exc:  # noqa: BLE001 — the campaign counts every kind of surprise
-        frames = [f for f in traceback.extract_tb(exc.__traceback__) if "modeheat" in f.filename]
+        frames = [f for f in traceback.extract_tb(exc.__traceback__) if Path(f.filename).parent.name == "modeheat"]
         where = f" [{Path(frames[-1].filename).name}:{frames[-1].lineno}]" if frames else ""
         kind = f"{type(exc).__name__}{where}: {str(exc).splitlines()[0][:120] if str(exc) else ''}"
     target = os.environ.get("PYTEST_CURRENT_TEST", "?").split("::")[-1].split(" ")[0]
@@ -107,12 +109,12 @@ def outcome(call, *, allow_inf: bool = True) -> str:
     return kind
 
 
-def checked_outcome(call, *, allow_inf: bool = True) -> str:
-    """Run `call`: "ok", "warned" (non-finite with a modeheat warning) or "rejected".
+def checked_outcome(call) -> str:
+    """Run `call`: "ok", "warned" (NaN with a NoDebyeTemperatureWarning) or "rejected".
 
     A :class:`ModeheatError` is "rejected"; any other exception propagates, a numpy
-    RuntimeWarning is raised as an error, and a NaN (or ±inf when not `allow_inf`)
-    without a modeheat warning raises :class:`UnexpectedOutcome`.
+    RuntimeWarning is raised as an error, and a NaN without that warning raises
+    :class:`UnexpectedOutcome`.
     """
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
@@ -121,12 +123,11 @@ def checked_outcome(call, *, allow_inf: bool = True) -> str:
             result = call()
         except ModeheatError:
             return "rejected"
-    warned = any(issubclass(w.category, ModeheatWarning) for w in caught)
-    bad = any(
-        np.any(np.isnan(v)) or (not allow_inf and np.any(np.isinf(v))) for v in _values(result)
-    )
+    # the only documented NaN: an effective Debye temperature that does not exist
+    warned = any(issubclass(w.category, NoDebyeTemperatureWarning) for w in caught)
+    bad = any(np.any(np.isnan(v)) for v in _values(result))
     if bad and not warned:
-        raise UnexpectedOutcome(f"non-finite result without a warning: {result!r}")
+        raise UnexpectedOutcome(f"NaN without a NoDebyeTemperatureWarning: {result!r}")
     return "warned" if bad else "ok"
 
 

@@ -2,7 +2,7 @@
 
 Each target feeds generated input (invented test shapes, tests/fuzzing.py) to a public
 reader or function and checks the guarantee of :func:`fuzzing.outcome`: finite results
-(NaN only with a modeheat warning) or a ModeheatError, never another exception.  The
+(NaN only where documented, with a NoDebyeTemperatureWarning) or a ModeheatError, never another exception.  The
 example counts keep the whole file near 30 s on two cores; tests/fuzz_campaign.py runs
 the same targets with thousands of examples.
 """
