@@ -121,6 +121,8 @@ class DebyeBranch:
         d = self.dim
         if n == 0:
             return self.modes * (math.log(self.theta) - 1.0 / d)
+        if n <= -d:
+            return math.inf  # ∫ω^(d−1+n) dω diverges at ω → 0, so θ(n) → 0
         return self.modes * d / (d + n) * self.theta**n
 
     def low_t(self):

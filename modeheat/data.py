@@ -120,7 +120,7 @@ from scipy import constants as _constants
 from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
 from .thermo import CAUTION, basis_text
-from .units import FREQUENCY_UNITS, check_unit
+from .units import FREQUENCY_UNITS, KELVIN_RANGE, check_unit
 
 __all__ = [
     "read_spectrum",
@@ -821,6 +821,8 @@ class _CpUnit:
 def _cp_unit(text: str) -> _CpUnit | None:
     """Parse a heat-capacity unit such as ``J/(mol K)``, ``mJ mol-1 K-1`` or ``J/g/K``; None if unknown."""
     s = str(text).strip().lower()
+    if not s:
+        return None
     for mark in ("·", "⋅", "*"):
         s = s.replace(mark, " ")
     s = s.replace("⁻¹", "-1").replace("^-1", "-1").replace("mol atoms", "mol-atoms").replace("mol atom", "mol-atom")
@@ -1123,11 +1125,18 @@ def _of_temperature(value, T: np.ndarray, label: str) -> np.ndarray:
 
 
 def _dilatation(T, c, alpha, bulk_modulus, molar_volume, gruneisen, A, who):
-    T = np.asarray(T, dtype=float)
-    c = np.asarray(c, dtype=float)
+    try:
+        T = np.asarray(T, dtype=float)
+        c = np.asarray(c, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(f"{who}: temperatures and heat capacities must be numbers") from None
+    if T.shape != c.shape and T.ndim and c.ndim:
+        raise InputError(f"{who}: {c.size} heat capacities for {T.size} temperatures; give one per temperature")
     T, c = np.broadcast_arrays(T, c)
-    if np.any(~np.isfinite(T) | (T < 0)):
-        raise InputError(f"{who}: temperatures must be finite and ≥ 0 K")
+    if np.any(~np.isfinite(T) | (T < 0) | (T > KELVIN_RANGE[1])):
+        raise InputError(f"{who}: temperatures must be finite, ≥ 0 K and at most {KELVIN_RANGE[1]:g} K")
+    if np.any(~np.isfinite(c)):
+        raise InputError(f"{who}: heat capacities must be finite")
     identity = bulk_modulus is not None or molar_volume is not None
     forms = [identity, gruneisen is not None, A is not None]
     if sum(forms) != 1:
@@ -1140,14 +1149,20 @@ def _dilatation(T, c, alpha, bulk_modulus, molar_volume, gruneisen, A, who):
             raise InputError(f"{who}: the thermodynamic identity needs alpha, bulk_modulus and molar_volume")
         b = _of_temperature(bulk_modulus, T, "bulk_modulus")
         v = _of_temperature(molar_volume, T, "molar_volume")
-        return T, c, "identity", _of_temperature(alpha, T, "alpha") ** 2 * b * v * T
+        a = _of_temperature(alpha, T, "alpha")
+        with np.errstate(over="ignore", invalid="ignore"):  # the callers reject non-finite results
+            return T, c, "identity", a**2 * b * v * T
     if gruneisen is not None:
         if alpha is None:
             raise InputError(f"{who}: the Grüneisen form needs alpha and gruneisen")
-        return T, c, "gruneisen", 1.0 + _of_temperature(alpha, T, "alpha") * _of_temperature(gruneisen, T, "gruneisen") * T
+        a, g = _of_temperature(alpha, T, "alpha"), _of_temperature(gruneisen, T, "gruneisen")
+        with np.errstate(over="ignore", invalid="ignore"):
+            return T, c, "gruneisen", 1.0 + a * g * T
     if alpha is not None:
         raise InputError(f"{who}: the Nernst–Lindemann form takes A alone, not alpha")
-    return T, c, "nernst-lindemann", _of_temperature(A, T, "A") * T
+    a = _of_temperature(A, T, "A")
+    with np.errstate(over="ignore", invalid="ignore"):
+        return T, c, "nernst-lindemann", a * T
 
 
 def cp_from_cv(
@@ -1197,13 +1212,14 @@ def cp_from_cv(
         4·A·T·C_v > 1 (no C_p satisfies the Nernst–Lindemann form).
     """
     T, c, form, k = _dilatation(temperatures, cv, alpha, bulk_modulus, molar_volume, gruneisen, A, "cp_from_cv")
-    if form == "identity":
-        return c + k
-    if form == "gruneisen":
-        return c * k
-    disc = 1.0 - 4.0 * k * c
-    if np.any(disc < 0):
-        i = int(np.flatnonzero(disc.ravel() < 0)[0])
+    with np.errstate(over="ignore", invalid="ignore"):  # overflows are caught as non-finite results
+        if form == "identity":
+            return _finite(c + k, T, "cp_from_cv")
+        if form == "gruneisen":
+            return _finite(c * k, T, "cp_from_cv")
+        disc = 1.0 - 4.0 * k * c
+    if np.any(~(disc >= 0)):
+        i = int(np.flatnonzero(~(disc.ravel() >= 0))[0])
         raise InputError(
             f"cp_from_cv: no C_p satisfies C_p − C_v = A·C_p²·T at T = {float(T.ravel()[i]):g} K: "
             f"4·A·T·C_v = {float(1 - disc.ravel()[i]):.6g} exceeds 1 (A too large)",
@@ -1231,11 +1247,26 @@ def cv_from_cp(
     heat capacity at constant pressure in J/(mol K).
     """
     T, c, form, k = _dilatation(temperatures, cp, alpha, bulk_modulus, molar_volume, gruneisen, A, "cv_from_cp")
-    if form == "identity":
-        return c - k
-    if form == "gruneisen":
-        return c / k
-    return c - k * c * c
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # caught as non-finite results
+        if form == "identity":
+            out = c - k
+        elif form == "gruneisen":
+            out = c / k
+        else:
+            out = c - k * c * c
+    return _finite(out, T, "cv_from_cp")
+
+
+def _finite(values: np.ndarray, T: np.ndarray, who: str) -> np.ndarray:
+    """`values`, or an InputError naming the first temperature where they are not finite."""
+    bad = np.flatnonzero(~np.isfinite(values.ravel()))
+    if bad.size:
+        i = int(bad[0])
+        raise InputError(
+            f"{who}: the result is not finite at T = {float(T.ravel()[i]):g} K; the coefficients are far too large",
+            index=i,
+        )
+    return values
 
 
 def nernst_lindemann_coefficient(temperature: float, cp: float, *, alpha, bulk_modulus, molar_volume) -> float:

@@ -37,7 +37,7 @@ from ._engine import ModeSet
 from .errors import InputError, ModeheatWarning
 from .models import Component, Dilatation, Electronic, Mixture
 from .thermo import CAUTION, atoms_of_data, effective_debye_temperature, heat_capacity, thermo
-from .units import R
+from .units import KELVIN_RANGE, R
 
 __all__ = [
     "FitWarning",
@@ -66,6 +66,10 @@ class _Points:
     sigma: np.ndarray | None
     dataset: np.ndarray  # index of the data set each point came from
     names: tuple[str, ...]
+
+
+_SIGMA_FLOOR = 1e-30  # J/(mol K): smallest uncertainty accepted
+_SIGMA_RELATIVE = 1e-12  # smallest uncertainty relative to the largest heat capacity of its set
 
 
 def _data_sets(data) -> list[pd.DataFrame]:
@@ -97,14 +101,17 @@ def _points(data, tmin: float | None, tmax: float | None) -> _Points:
             values = frame[cols].to_numpy(dtype=float)
         except (TypeError, ValueError):
             raise InputError(f"{label}: the columns {', '.join(cols)} must hold numbers") from None
-        bad = ~np.isfinite(values).all(axis=1) | ~(values[:, 0] > 0)
+        lo, hi = KELVIN_RANGE
+        bad = ~np.isfinite(values).all(axis=1) | ~((values[:, 0] >= lo) & (values[:, 0] <= hi))
         if with_sigma[k]:
-            bad |= ~(values[:, 2] > 0)
+            # An uncertainty this far below the data scale would overflow the weights T/σ.
+            floor = max(_SIGMA_FLOOR, _SIGMA_RELATIVE * float(np.max(np.abs(values[:, 1]), initial=0.0)))
+            bad |= ~(values[:, 2] >= floor)
         if bad.any():
             i = int(np.flatnonzero(bad)[0])
             raise InputError(
-                f"{label}: row {i} ({', '.join(f'{c} = {v:g}' for c, v in zip(cols, values[i]))}) needs T > 0, "
-                "finite values and sigma > 0"
+                f"{label}: row {i} ({', '.join(f'{c} = {v:g}' for c, v in zip(cols, values[i]))}) needs T in "
+                f"{lo:g}–{hi:g} K, finite values and sigma ≥ {_SIGMA_FLOOR:g} J/(mol K) and ≥ {_SIGMA_RELATIVE:g} of the largest C"
             )
         keep = np.ones(len(values), dtype=bool)
         if tmin is not None:
@@ -259,7 +266,7 @@ def low_temperature_fit(
     Raises
     ------
     InputError
-        Fewer points in the window than terms + 1, or a fitted β ≤ 0 (no Debye
+        Fewer points, or fewer distinct temperatures, in the window than terms + 1, or a fitted β ≤ 0 (no Debye
         temperature exists: the window may reach above the T³ region, or the data
         may be dominated by another term).
     """
@@ -280,6 +287,14 @@ def low_temperature_fit(
         raise InputError(
             f"only {n} point(s) in the window {_window_text(tmin, tmax)}: fitting {p} terms "
             f"({', '.join(order)}) needs at least {p + 1}"
+        )
+    distinct = np.unique(T).size
+    if distinct < p + 1:
+        # The terms are powers of T: at fewer temperatures they cannot be told apart, and with
+        # exactly p the fit passes through the means and its standard errors mean nothing.
+        raise InputError(
+            f"the {n} points in the window {_window_text(tmin, tmax)} share {distinct} temperature(s): fitting "
+            f"{p} terms ({', '.join(order)}) needs at least {p + 1} distinct ones"
         )
     y = pts.C / T
     X = np.stack([T ** _LOW_T_TERMS[t] for t in order], axis=1)
@@ -1238,10 +1253,10 @@ def _grid(ms: ModeSet, temperatures) -> np.ndarray:
     theta0 = ms.low_temperature_theta()
     if 0 < theta0 < math.inf:
         lows.append(theta0)
-    if np.sum(ms.weight) >= floor:
+    if ms.weight.size and np.sum(ms.weight) >= floor:
         order = np.argsort(ms.theta)
         cum = np.cumsum(ms.weight[order])
-        lows.append(float(ms.theta[order][np.searchsorted(cum, floor)]))
+        lows.append(float(ms.theta[order][min(int(np.searchsorted(cum, floor)), cum.size - 1)]))
     lows += [getattr(b, "theta_low", 0.0) or b.theta_max for b in ms.branches if b.modes >= floor]
     return np.geomspace(1e-3 * min(lows), 3.0 * ms.theta_max, 400)
 

@@ -37,7 +37,7 @@ from . import special
 from ._engine import DebyeBranch, ModeSet, _kernels
 from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
-from .units import R, check_unit, kelvin_per
+from .units import R, check_kelvin, check_unit, kelvin_per
 
 __all__ = [
     "Component",
@@ -57,24 +57,43 @@ class ModeCountWarning(ModeheatWarning):
     """A mixture's mode count differs from 3·atoms (when asked to warn, not raise)."""
 
 
-def _positive(kind: str, label: str, value) -> float:
+# Larger mode counts, γ, n or A than this have no physical meaning and would overflow
+# the tables (U ~ modes·T at T up to 1e12 K).
+_LARGEST = 1e100
+
+
+def _number(kind: str, label: str, value) -> float:
     try:
         v = float(value)
     except (TypeError, ValueError):
         raise InputError(f"{kind}: {label} must be a number, not {value!r}") from None
+    if math.isfinite(v) and v > _LARGEST:
+        raise InputError(f"{kind}: {label} = {v:g} is beyond any meaningful size (at most {_LARGEST:g})")
+    return v
+
+
+def _positive(kind: str, label: str, value) -> float:
+    v = _number(kind, label, value)
     if not (math.isfinite(v) and v > 0):
         raise InputError(f"{kind}: {label} must be positive and finite, not {value!r}")
     return v
 
 
 def _non_negative(kind: str, label: str, value) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{kind}: {label} must be a number, not {value!r}") from None
+    v = _number(kind, label, value)
     if not (math.isfinite(v) and v >= 0):
         raise InputError(f"{kind}: {label} must be ≥ 0 and finite, not {value!r}")
     return v
+
+
+def _kelvin(kind: str, label: str, value) -> float:
+    """A temperature equivalent in K inside :data:`~modeheat.units.KELVIN_RANGE`."""
+    return check_kelvin(f"{kind}: {label}", _positive(kind, label, value))
+
+
+def _kelvin_or_zero(kind: str, label: str, value) -> float:
+    v = _non_negative(kind, label, value)
+    return v if v == 0 else _kelvin(kind, label, v)
 
 
 def _dim(kind: str, label: str, dim) -> int:
@@ -341,7 +360,7 @@ class Debye(Component):
     kind: ClassVar[str] = "debye"
     _continuous: ClassVar[tuple[str, ...]] = ("theta",)
 
-    _checks: ClassVar[dict] = {"theta": _positive, "modes": _non_negative, "dim": _dim}
+    _checks: ClassVar[dict] = {"theta": _kelvin, "modes": _non_negative, "dim": _dim}
 
     def _parts(self):
         return [], [], [DebyeBranch(self.theta, self.modes, self.dim)], []
@@ -375,7 +394,7 @@ class SineChain(Component):
     kind: ClassVar[str] = "sinechain"
     _continuous: ClassVar[tuple[str, ...]] = ("theta",)
 
-    _checks: ClassVar[dict] = {"theta": _positive, "modes": _non_negative, "dim": _dim}
+    _checks: ClassVar[dict] = {"theta": _kelvin, "modes": _non_negative, "dim": _dim}
 
     def _parts(self):
         return [], [], [_SineBranch(self.theta, self.modes, self.dim)], []
@@ -405,7 +424,7 @@ class Einstein(Component):
     kind: ClassVar[str] = "einstein"
     _continuous: ClassVar[tuple[str, ...]] = ("theta",)
 
-    _checks: ClassVar[dict] = {"theta": _positive, "modes": _non_negative}
+    _checks: ClassVar[dict] = {"theta": _kelvin, "modes": _non_negative}
 
     def _parts(self):
         return [self.theta], [self.modes], [], []
@@ -437,7 +456,7 @@ class Band(Component):
     kind: ClassVar[str] = "band"
     _continuous: ClassVar[tuple[str, ...]] = ("theta_low", "theta_high")
 
-    _checks: ClassVar[dict] = {"theta_low": _non_negative, "theta_high": _positive, "modes": _non_negative}
+    _checks: ClassVar[dict] = {"theta_low": _kelvin_or_zero, "theta_high": _kelvin, "modes": _non_negative}
 
     def __post_init__(self):
         super().__post_init__()
@@ -505,7 +524,7 @@ class Schottky(Component):
     kind: ClassVar[str] = "schottky"
     _continuous: ClassVar[tuple[str, ...]] = ("delta", "n")
 
-    _checks: ClassVar[dict] = {"delta": _positive, "g_ratio": _positive, "n": _non_negative}
+    _checks: ClassVar[dict] = {"delta": _kelvin, "g_ratio": _positive, "n": _non_negative}
 
     def _parts(self):
         return [], [], [], [_SchottkyTerm(self.delta, self.g_ratio, self.n)]
@@ -644,7 +663,10 @@ class Mixture:
         :meth:`modeheat.Spectrum.moment_debye_temperature`); θ(−3) is the T → 0 limit."""
         if not n >= -3:
             raise InputError(f"moment order must be ≥ −3, not {n!r}")
-        return self.modeset().moment_theta(n)
+        ms = self.modeset()
+        if ms.modes <= 0:
+            raise InputError("the mixture has no vibrational modes, so it has no moment Debye temperature")
+        return ms.moment_theta(n)
 
     def cumulative(self, theta) -> np.ndarray:
         """Vibrational modes per formula unit below θ (K)."""
@@ -710,13 +732,21 @@ def solid(
     """
     atoms = _positive("solid", "atoms", atoms)
     optical = list(optical)
+    if not isinstance(acoustic, (Debye, SineChain)):
+        raise InputError(f"solid: the acoustic part must be a Debye or SineChain component, not {acoustic!r}")
+    for c in optical:
+        if not isinstance(c, Component) or "modes" not in {f.name for f in dataclasses.fields(c)}:
+            raise InputError(f"solid: optical parts must be vibrational components (Einstein, Band …), not {c!r}")
     n_opt = 3.0 * (atoms - 1.0)
     if optical and n_opt <= 0:
         raise InputError("a solid with one atom per formula unit has no optical modes")
     if n_opt > 0 and not optical:
         raise InputError(f"{atoms:g} atoms per formula unit need optical components for {n_opt:g} modes")
-    shares = np.ones(len(optical)) if split is None else np.asarray(list(split), dtype=float)
-    if shares.size != len(optical) or np.any(shares < 0) or (optical and shares.sum() <= 0):
+    try:
+        shares = np.ones(len(optical)) if split is None else np.asarray(list(split), dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(f"split needs numbers, not {split!r}") from None
+    if shares.shape != (len(optical),) or not np.all(np.isfinite(shares) & (shares >= 0)) or (optical and shares.sum() <= 0):
         raise InputError("split needs one non-negative share per optical component")
     comps = [acoustic.replace(modes=3.0)]
     comps += [c.replace(modes=n_opt * s / shares.sum()) for c, s in zip(optical, shares)]

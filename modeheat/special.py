@@ -29,6 +29,8 @@ from functools import lru_cache
 import numpy as np
 from scipy.special import bernoulli, zeta
 
+from .errors import InputError
+
 __all__ = [
     "einstein_cv",
     "einstein_entropy",
@@ -52,13 +54,13 @@ _N_TAIL = 24  # e^(−24·2) ≈ 1e-21: the tail sum is complete at x = 2
 def _as_x(x) -> np.ndarray:
     x = np.asarray(x, dtype=float)
     if np.any(x < 0) or np.any(np.isnan(x)):
-        raise ValueError("x = θ/T must be non-negative and not NaN")
+        raise InputError("x = θ/T must be non-negative and not NaN")
     return x
 
 
 def _check_dim(dim: int) -> int:
     if dim not in (1, 2, 3):
-        raise ValueError(f"dim must be 1, 2 or 3, not {dim!r}")
+        raise InputError(f"dim must be 1, 2 or 3, not {dim!r}")
     return int(dim)
 
 

@@ -43,7 +43,7 @@ from scipy import constants as _c
 
 from ._engine import DebyeBranch, ModeSet
 from .errors import AtomCountWarning, InputError, SpectrumWarning
-from .units import check_unit, kelvin_per
+from .units import ATOMS_RANGE, KELVIN_RANGE, check_kelvin, check_unit, kelvin_per
 
 __all__ = ["Spectrum", "ReducedDensity", "debye_temperature_from_sound"]
 
@@ -55,6 +55,7 @@ _FIT_FRACTION = 1e-4
 _ATOMS_TOLERANCE = 0.01  # a mode count within 1 % of 3·n ...
 _ATOMS_MODES = 0.1  # ... and within 0.1 mode of it names n
 _MAX_INFERRED_ATOMS = 32  # raw counts of any q-mesh of ≥ 33 points (3·atoms·N_q) lie above
+_FINEST_STEP = 1e-9  # sampled frequencies above 0 but below this fraction of the highest are unresolvable
 
 
 @dataclass(frozen=True)
@@ -137,6 +138,8 @@ def _check_atoms(atoms) -> float:
         raise InputError(f"atoms must be a positive number, not {atoms!r}") from None
     if not (math.isfinite(a) and a > 0):
         raise InputError(f"atoms must be a positive number, not {atoms!r}")
+    if not ATOMS_RANGE[0] <= a <= ATOMS_RANGE[1]:
+        raise InputError(f"atoms = {a:g} per formula unit is outside {ATOMS_RANGE[0]:g}–{ATOMS_RANGE[1]:g}")
     return a
 
 
@@ -180,6 +183,60 @@ def _resolve_atoms(atoms, modes: float, informative: bool, what: str, who: str) 
 
 def _atoms_text(n: float) -> str:
     return "1 atom" if n == 1 else f"{n:g} atoms"
+
+
+def _check_frequency_range(name: str, values: np.ndarray, unit: str, *, sampled: bool) -> None:
+    """Frequencies whose temperature equivalents modeheat can evaluate (K range, grid resolution).
+
+    Imaginary (negative) frequencies count by their size.  For a sampled grid a positive
+    frequency below 1e-9 of the highest one is an error too:
+    a grid step that fine underflows in the ω² interpolation and resolves nothing.
+    """
+    with np.errstate(over="ignore"):  # an overflow to inf is caught just below
+        theta = np.abs(values) * kelvin_per(unit)
+    lo, hi = KELVIN_RANGE
+    top = int(np.argmax(theta))
+    if theta[top] > hi:
+        raise InputError(
+            f"{name} {values[top]:g} {unit} is {theta[top]:.3g} K, above the {hi:g} K modeheat can evaluate",
+            index=top,
+        )
+    floor = max(lo, _FINEST_STEP * theta[top]) if sampled else lo
+    tiny = np.flatnonzero((values > 0) & (theta < floor))
+    if tiny.size:
+        i = int(tiny[0])
+        why = f"below {_FINEST_STEP:g} of the highest frequency" if sampled and floor > lo else f"below {lo:g} K"
+        raise InputError(
+            f"{name} {values[i]:g} {unit} is above 0 but {why}, too fine to resolve; write 0 or drop the row",
+            index=i,
+        )
+
+
+def _normalised(name: str, values: np.ndarray) -> tuple[np.ndarray, int]:
+    """`values` divided by a power of two near their peak (exact), and that exponent.
+
+    Normalising first keeps integrals of tiny or huge densities, weights and counts
+    from underflowing or overflowing; a peak below the smallest normal double carries
+    too few digits to normalise.
+    """
+    peak = float(np.max(np.abs(values))) if values.size else 0.0
+    if peak == 0.0:
+        return values, 0
+    if peak < np.finfo(float).tiny:
+        raise InputError(
+            f"every {name} value is subnormal (at most {peak:.3g}), too small to normalise with any "
+            "precision; multiply the column by a large factor (the normalisation does not depend on it)"
+        )
+    exponent = math.frexp(peak)[1]
+    return np.ldexp(values, -exponent), exponent
+
+
+def _scaled_back(name: str, value: float, exponent: int) -> float:
+    """`value`·2^exponent, the raw integral in the units given; an InputError if it overflows."""
+    try:
+        return math.ldexp(value, exponent)
+    except OverflowError:
+        raise InputError(f"the {name} values are so large that their total overflows; divide the column by a large factor") from None
 
 
 def _label(name) -> str:
@@ -321,6 +378,8 @@ class Spectrum:
         g = _vector("density", density)
         if g.shape != f.shape:
             raise InputError(f"density has {g.size} values but frequency has {f.size}")
+        if f.size:
+            _check_frequency_range("frequency", f, unit, sampled=True)
         parts = _partial_vectors(partials, "partial density", f.size, "frequency")
         if f.size < 2:
             raise InputError(f"a sampled spectrum needs at least 2 points, got {f.size}")
@@ -330,7 +389,8 @@ class Spectrum:
             warnings.warn(f"{who}: frequencies were not in increasing order; sorted", SpectrumWarning, stacklevel=2)
         f, g = f[order], g[order]
         parts = {k: v[order] for k, v in parts.items()}
-        mode_integral = float(np.trapezoid(g, f))
+        scaled, exponent = _normalised("density", g)
+        mode_integral = _scaled_back("density", float(np.trapezoid(scaled, f)), exponent)
         g = _clip_noise("density", g, who, order)
         parts = {k: _clip_noise(f"partial density {k!r}", v, who, order) for k, v in parts.items()}
 
@@ -338,6 +398,15 @@ class Spectrum:
         f, g, parts = _drop_imaginary(f, g, parts, who, order)
         if not np.any(g > 0):
             raise InputError("density is zero everywhere: no modes")
+        if f.size < 2:
+            raise InputError(f"every row has the same frequency ({f[0]:g} {unit}): a sampled spectrum needs 2 distinct ones")
+        if low_t != "off" and not np.any(g[f > 0] > 0):
+            raise InputError(
+                "the density is zero at every frequency above 0: with the ω² low-temperature continuation a "
+                "density at ω = 0 alone carries no modes (low_t='off' reads the data as they are)"
+            )
+        g, exponent = _normalised("density", g)
+        parts = {k: np.ldexp(v, -exponent) for k, v in parts.items()}
         what = "the density integrates (trapezoid rule, imaginary part included) to"
         atoms, atoms_source = _resolve_atoms(atoms, mode_integral, True, what, who)
 
@@ -355,7 +424,7 @@ class Spectrum:
             low_t=low_t,
             cutoff_k=cutoff_k,
             fit_theta=fit_theta,
-            raw_integral=float(np.trapezoid(g, f)),
+            raw_integral=_scaled_back("density", float(np.trapezoid(g, f)), exponent),
             modeset=ms,
             atoms_source=atoms_source,
             mode_integral=mode_integral,
@@ -436,8 +505,13 @@ class Spectrum:
         parts = _partial_vectors(partials, "partial weights", f.size, "frequencies")
         if f.size == 0 or not np.any(w > 0):
             raise InputError("no modes given")
-        mode_integral = float(w.sum())
-        if weights is None or np.all(w == np.round(w)):
+        _check_frequency_range("frequency", f, unit, sampled=False)
+        if not np.any(w[f > 0] > 0):
+            raise InputError("every mode with weight has zero or negative frequency: no real modes")
+        counted = weights is None or bool(np.all(w == np.round(w)))
+        w, exponent = _normalised("weight", w)
+        mode_integral = _scaled_back("weight", float(w.sum()), exponent)
+        if counted:
             # Counted modes: a q-mesh of N_q points gives 3·atoms·N_q, which does not tell atoms.
             what = (
                 f"a mode list with whole-number weights or none counts modes ({mode_integral:.6g}), "
@@ -483,7 +557,7 @@ class Spectrum:
             low_t=low_t,
             cutoff_k=cutoff_k,
             fit_theta=fit_theta,
-            raw_integral=total_w,
+            raw_integral=_scaled_back("weight", total_w, exponent),
             modeset=ms,
             atoms_source=atoms_source,
             mode_integral=mode_integral,
@@ -532,9 +606,12 @@ class Spectrum:
         step = np.flatnonzero(np.diff(e) <= 0)
         if step.size:
             raise InputError("bin edges must increase strictly", index=int(step[0]) + 1)
+        _check_frequency_range("bin edge", e, unit, sampled=True)
         parts = _partial_vectors(partials, "partial counts", c.size, "counts")
         order = np.arange(c.size)
-        mode_integral = float(c.sum())
+        counted = bool(np.all(c == np.round(c)))
+        scaled, exponent = _normalised("count", c)
+        mode_integral = _scaled_back("count", float(scaled.sum()), exponent)
         c = _clip_noise("counts", c, who, order)
         parts = {k: _clip_noise(f"partial counts {k!r}", v, who, order) for k, v in parts.items()}
         if e[-1] <= 0 or not np.any(c[e[1:] > 0] > 0):
@@ -556,7 +633,9 @@ class Spectrum:
             e[0] = max(e[0], 0.0)
         if not np.any(c > 0):
             raise InputError("counts are zero everywhere: no modes")
-        if np.all(c == np.round(c)):
+        c, exponent = _normalised("count", c)
+        parts = {k: np.ldexp(v, -exponent) for k, v in parts.items()}
+        if counted:
             what = (
                 f"whole-number counts ({mode_integral:.6g} modes in all) count the modes of a q-mesh, "
                 "3·atoms·N_q for N_q q-points, and do not tell the atoms"
@@ -581,7 +660,7 @@ class Spectrum:
             low_t=low_t,
             cutoff_k=cutoff_k,
             fit_theta=fit_theta,
-            raw_integral=total,
+            raw_integral=_scaled_back("count", total, exponent),
             modeset=ms,
             atoms_source=atoms_source,
             mode_integral=mode_integral,
@@ -736,7 +815,7 @@ def _check_low_t(low_t):
         raise InputError(f"low_t must be 'fit', 'off' or a Debye temperature in K, not {low_t!r}") from None
     if not (math.isfinite(value) and value > 0):
         raise InputError(f"a Debye temperature for low_t must be positive, not {low_t!r}")
-    return value
+    return check_kelvin("low_t", value)
 
 
 def _merge_duplicates(f, g, parts, who):
@@ -829,7 +908,7 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
         n_c = below * scale
     else:
         n_c = 3.0 * atoms * (wc / low_t) ** 3
-        if n_c >= 3.0 * atoms:
+        if n_c >= 3.0 * atoms or not w.sum() > 0:
             raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
         scale = (3.0 * atoms - n_c) / float(w.sum())
     branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()
@@ -966,7 +1045,7 @@ def _histogram_modeset(theta, counts, atoms, low_t, cutoff, unit):
         n_c = below
     else:
         n_c = 3.0 * atoms * (wc / low_t) ** 3
-        if n_c >= 3.0 * atoms:
+        if n_c >= 3.0 * atoms or not w.sum() > 0:
             raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
         w = w * ((3.0 * atoms - n_c) / w.sum())
     branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()

@@ -17,8 +17,8 @@ import pandas as pd
 
 from . import special
 from ._engine import ModeSet
-from .errors import InputError, NoDebyeTemperatureWarning
-from .units import R
+from .errors import InputError, ModeheatError, NoDebyeTemperatureWarning
+from .units import ATOMS_RANGE, KELVIN_RANGE, R
 
 __all__ = [
     "thermo",
@@ -47,22 +47,27 @@ def _modeset(source) -> ModeSet:
         return source
     get = getattr(source, "modeset", None)
     if get is None:
-        raise TypeError(
+        raise InputError(
             f"cannot compute thermodynamics of {type(source).__name__}: expected a Spectrum, "
             "a model component or a mixture"
         )
     return get()
 
 
-def _temperatures(temperatures) -> np.ndarray:
-    T = np.atleast_1d(np.asarray(temperatures, dtype=float))
+def _temperatures(temperatures, *, zero: bool = True) -> np.ndarray:
+    """Validated 1-D temperatures in K: 0 (if `zero`) or inside :data:`~modeheat.units.KELVIN_RANGE`."""
+    try:
+        T = np.atleast_1d(np.asarray(temperatures, dtype=float))
+    except (TypeError, ValueError):
+        raise InputError(f"temperatures must be numbers in K, not {temperatures!r}") from None
     if T.ndim != 1:
         raise InputError(f"temperatures must be one-dimensional, not of shape {T.shape}")
-    bad = np.flatnonzero(~np.isfinite(T) | (T < 0))
+    lo, hi = KELVIN_RANGE
+    inside = (T >= lo) & (T <= hi)
+    bad = np.flatnonzero(~(inside | (T == 0)) if zero else ~inside)
     if bad.size:
-        raise InputError(
-            f"temperature {T[bad[0]]!r} is not a finite value ≥ 0 K", index=int(bad[0])
-        )
+        allowed = f"0 or {lo:g}–{hi:g} K" if zero else f"{lo:g}–{hi:g} K"
+        raise InputError(f"temperature {float(T[bad[0]])!r} K is not {allowed}", index=int(bad[0]))
     return T
 
 
@@ -91,7 +96,16 @@ def basis_text(per: str, atoms: float, molar_mass: float | None = None) -> str:
 def _evaluate(source, temperatures, per, molar_mass=None):
     ms = _modeset(source)
     T = _temperatures(temperatures)
-    return ms, T, ms.evaluate(T), R * _scale(ms, per, molar_mass)
+    r = ms.evaluate(T)
+    for key, label in (("cv", "C_v"), ("s", "S"), ("u", "U"), ("f", "F")):
+        bad = np.flatnonzero(~np.isfinite(r[key]))
+        if bad.size:
+            # A safety net: inputs are validated so that this cannot happen; never return it silently.
+            raise ModeheatError(
+                f"{label} is not finite at T = {T[bad[0]]:g} K for {getattr(source, 'name', None) or 'this source'}: "
+                "its parameters lie outside what modeheat can evaluate"
+            )
+    return ms, T, r, R * _scale(ms, per, molar_mass)
 
 
 def heat_capacity(source, temperatures, *, per: str = "formula", molar_mass: float | None = None) -> np.ndarray:
@@ -100,7 +114,7 @@ def heat_capacity(source, temperatures, *, per: str = "formula", molar_mass: flo
     Parameters
     ----------
     source : Spectrum, component or mixture
-    temperatures : array_like — T in K, ≥ 0
+    temperatures : array_like — T in K: 0, or 1e-12–1e12 K (:data:`~modeheat.units.KELVIN_RANGE`)
     per : {"formula", "atom", "gram"} — per mole of formula units, per mole of atoms, or per
         gram (then J/(g K))
     molar_mass : float, optional — g/mol of formula units, for ``per="gram"``
@@ -139,7 +153,7 @@ def thermo(source, temperatures, *, per: str = "formula", molar_mass: float | No
     Parameters
     ----------
     source : Spectrum, component or mixture
-    temperatures : array_like — T in K, ≥ 0
+    temperatures : array_like — T in K: 0, or 1e-12–1e12 K (:data:`~modeheat.units.KELVIN_RANGE`)
     per : {"formula", "atom", "gram"} — per mole of formula units, per mole of atoms, or per
         gram (J/(g K) and J/g)
     molar_mass : float, optional — g/mol of formula units, for ``per="gram"``
@@ -151,9 +165,29 @@ def thermo(source, temperatures, *, per: str = "formula", molar_mass: float | No
         ``F`` [J/mol] (both with zero point; per gram: J/(g K), J/g) and ``theta_D`` [K], the effective Debye
         temperature of the lattice (vibrational) C_v.  ``attrs`` holds the units, the
         basis, the source's name, the zero-point energy and the caution.
+
+    Raises
+    ------
+    InputError
+        Temperatures outside 0 or 1e-12–1e12 K, or a source that is not a spectrum,
+        component or mixture.
+
+    Warns
+    -----
+    NoDebyeTemperatureWarning
+        ``theta_D`` is NaN where no effective Debye temperature exists (a source without
+        vibrational modes).
     """
     ms, T, r, k = _evaluate(source, temperatures, per, molar_mass)
     theta = _lattice_theta(ms, T, r["cv_lattice"])
+    missing = np.count_nonzero(np.isnan(theta))
+    if missing:
+        why = "the source has no vibrational modes" if ms.modes <= 0 else "the lattice C_v cannot be inverted there"
+        warnings.warn(
+            f"no effective Debye temperature at {missing} of {T.size} temperature(s) ({why}): theta_D is NaN",
+            NoDebyeTemperatureWarning,
+            stacklevel=2,
+        )
     frame = pd.DataFrame(
         {"T": T, "Cv": k * r["cv"], "S": k * r["s"], "U": k * r["u"], "F": k * r["f"], "theta_D": theta}
     )
@@ -196,15 +230,17 @@ def _thirring_theta(ms: ModeSet, T: np.ndarray) -> np.ndarray:
     _, coeffs = special._series_coefficients(3)
     a = -coeffs[::-1][1:5]  # 1 − C_D/C_max = Σ a_j x^(2j), j = 1..4
     moments = [ms.moment(2 * j) for j in range(1, 5)]
-    deficit = sum(a[j] * moments[j] / T ** (2 * j + 2) for j in range(4))
-    # The same series for a single Einstein mode: 1 − C_E = x²/12 − x⁴/240 + x⁶/6048 − …
+    # 1 − C/C_max of the modes from their moments, by the series of one Einstein mode:
+    # 1 − C_E = x²/12 − x⁴/240 + x⁶/6048 − …
     e = np.array([1 / 12, -1 / 240, 1 / 6048, -1 / 172800])
     deficit = sum(e[j] * moments[j] / T ** (2 * j + 2) for j in range(4))
     y = np.sqrt(deficit / a[0])
-    for _ in range(4):
-        g = sum(a[j] * y ** (2 * j + 2) for j in range(4)) - deficit
-        dg = sum((2 * j + 2) * a[j] * y ** (2 * j + 1) for j in range(4))
-        y = y - g / dg
+    # A deficit that underflows (absurdly few modes) gives y = 0 and 0/0: NaN, which thermo warns about.
+    with np.errstate(invalid="ignore", divide="ignore"):
+        for _ in range(4):
+            g = sum(a[j] * y ** (2 * j + 2) for j in range(4)) - deficit
+            dg = sum((2 * j + 2) * a[j] * y ** (2 * j + 1) for j in range(4))
+            y = y - g / dg
     return T * y
 
 
@@ -268,10 +304,16 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float | None = None)
     Parameters
     ----------
     temperatures : array_like — T in K, > 0
-    cv : array_like — C_v in J/(mol K) per mole of formula units (a column of a
-        :func:`~modeheat.data.read_heat_capacity` frame carries its atom count)
+    cv : array_like — C_v in J/(mol K) per mole of formula units, one per temperature (a
+        column of a :func:`~modeheat.data.read_heat_capacity` frame carries its atom count)
     atoms : float, optional — atoms per formula unit; by default the count `cv`
         carries, else 1 (:func:`atoms_of_data`)
+
+    Raises
+    ------
+    InputError
+        Temperatures outside 1e-12–1e12 K (:data:`~modeheat.units.KELVIN_RANGE`),
+        non-finite heat capacities, lengths that differ, or atoms outside 1e-6–1e9.
 
     Notes
     -----
@@ -280,13 +322,25 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float | None = None)
     to C_v and remove the electronic term before asking for a Debye temperature.
     """
     atoms, _ = atoms_of_data(cv, atoms)
-    T, c = np.broadcast_arrays(np.asarray(temperatures, dtype=float), np.asarray(cv, dtype=float))
+    try:
+        T, c = np.asarray(temperatures, dtype=float), np.asarray(cv, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError("temperatures and cv must be numbers (K and J/(mol K))") from None
+    try:
+        T, c = np.broadcast_arrays(T, c)
+    except ValueError:
+        raise InputError(f"cv has {c.size} value(s) but temperatures has {T.size}") from None
+    _temperatures(T.ravel(), zero=False)
+    bad = np.flatnonzero(~np.isfinite(c.ravel()))
+    if bad.size:
+        raise InputError(f"cv is {float(c.ravel()[bad[0]])!r}, not a finite number", index=int(bad[0]))
+    lo, hi = ATOMS_RANGE
+    if not (isinstance(atoms, (int, float, np.number)) and lo <= atoms <= hi):
+        raise InputError(f"atoms must be a number of atoms per formula unit in {lo:g}–{hi:g}, not {atoms!r}")
     per_mode = c / (3.0 * atoms * R)
-    x = special.debye_cv_inverse(per_mode)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        theta = np.where(T > 0, T * x, np.nan)
+    theta = T * special.debye_cv_inverse(per_mode)
     above = np.count_nonzero(per_mode >= 1)
-    below = np.count_nonzero(~(per_mode > 0) & np.isfinite(per_mode))
+    below = np.count_nonzero(~(per_mode > 0))
     if above or below:
         parts = []
         if above:

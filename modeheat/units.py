@@ -12,7 +12,17 @@ from scipy import constants as _c
 
 from .errors import InputError
 
-__all__ = ["R", "FREQUENCY_UNITS", "kelvin_per", "to_kelvin", "from_kelvin", "check_unit"]
+__all__ = [
+    "R",
+    "FREQUENCY_UNITS",
+    "KELVIN_RANGE",
+    "ATOMS_RANGE",
+    "kelvin_per",
+    "to_kelvin",
+    "from_kelvin",
+    "check_unit",
+    "check_kelvin",
+]
 
 #: Molar gas constant in J/(mol K) (CODATA, via scipy.constants).
 R: float = _c.R
@@ -25,6 +35,15 @@ FREQUENCY_UNITS: dict[str, float] = {
     "cm-1": _c.h * _c.c * 100.0 / _c.k,
     "rad/s": _c.hbar / _c.k,
 }
+
+#: Temperatures and temperature equivalents modeheat accepts, in K.  Far wider than any
+#: solid (nuclear Schottky levels ~1e-6 K, phonons < 1e4 K), and narrow enough that the
+#: powers θ^±10 and x = θ/T the numerics form stay finite and normal in double precision.
+KELVIN_RANGE: tuple[float, float] = (1e-12, 1e12)
+
+#: Atoms per formula unit modeheat accepts: beyond any real formula unit on both sides,
+#: and narrow enough that 3·atoms·R and the per-mode heat capacities stay finite.
+ATOMS_RANGE: tuple[float, float] = (1e-6, 1e9)
 
 _ALIASES = {
     "k": "K",
@@ -66,3 +85,11 @@ def to_kelvin(values, unit: str) -> np.ndarray:
 def from_kelvin(values, unit: str) -> np.ndarray:
     """Temperature equivalents in K → frequencies in `unit`."""
     return np.asarray(values, dtype=float) / kelvin_per(unit)
+
+
+def check_kelvin(label: str, value: float) -> float:
+    """`value` (K) as a float if it lies in :data:`KELVIN_RANGE`, else an :class:`InputError`."""
+    lo, hi = KELVIN_RANGE
+    if not lo <= value <= hi:
+        raise InputError(f"{label} = {value:.6g} K lies outside the {lo:g}–{hi:g} K that modeheat can evaluate")
+    return float(value)
