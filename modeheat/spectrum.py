@@ -167,7 +167,10 @@ def _resolve_atoms(atoms, modes: float, informative: bool, what: str, who: str) 
                 )
             else:
                 why = what
-            raise InputError(f"pass atoms=... (atoms per formula unit): {why}")
+            raise InputError(
+                f"the atoms per formula unit are not clear from the data: {why}; give them (atoms= in "
+                "Python, --atoms on the command line, or an '# atoms: N' line in the file)"
+            )
         return float(clear), "integral"
     given = _check_atoms(atoms)
     if clear is not None and clear != given:
