@@ -26,6 +26,7 @@ import pandas as pd
 
 from .data import read_spectrum, write_table
 from .errors import InputError, ModeheatError
+from .spectrum import LOW_T_CHOICES
 from .thermo import CAUTION, basis_text, thermo
 from .units import FREQUENCY_UNITS, check_unit
 
@@ -91,13 +92,13 @@ def _temperature(text: str, spec: str) -> float:
 
 # --- argument types ------------------------------------------------------------------------
 def _low_t_arg(text: str) -> str | float:
-    if text in ("fit", "extrapolate", "off"):
+    if text in LOW_T_CHOICES:
         return text
     try:
         value = float(text)
     except ValueError:
         raise argparse.ArgumentTypeError(
-            f"expected 'fit', 'extrapolate', 'off' or a Debye temperature in K, not {text!r}"
+            f"expected {', '.join(repr(c) for c in LOW_T_CHOICES)} or a Debye temperature in K, not {text!r}"
         ) from None
     if not (np.isfinite(value) and value > 0):
         raise argparse.ArgumentTypeError(f"a Debye temperature must be positive, not {text!r}")
@@ -238,19 +239,21 @@ def build_parser() -> argparse.ArgumentParser:
     table.add_argument(
         "--low-t",
         type=_low_t_arg,
-        default="fit",
-        metavar="fit|extrapolate|off|THETA",
-        help="low-temperature continuation below what the grid resolves: 'fit' (default, an ω² "
-        "branch with the spectrum's own lowest mode count), 'extrapolate' (a·ω² from a fit of "
-        "aω²+bω⁴ to the lowest 2%% of the modes, for q-mesh spectra that undercount their "
-        "lowest shells), 'off', or a Debye temperature θ_D(0) in K (e.g. from elastic constants)",
+        default="auto",
+        metavar="auto|fit|extrapolate|off|THETA",
+        help="low-temperature continuation below what the data resolve: 'auto' (default: an ω² "
+        "law fitted to the resolved part above the unresolved bottom of a q-mesh DOS, none for a "
+        "gapped spectrum), 'fit' (an ω² branch with the spectrum's own lowest mode count), "
+        "'extrapolate' (a·ω² from a fit of aω²+bω⁴ to the lowest 2%% of the modes), 'off', or a "
+        "Debye temperature θ_D(0) in K (e.g. from elastic constants; the cut-off then chosen as "
+        "for 'auto')",
     )
     table.add_argument(
         "--low-t-cutoff",
         type=_positive_float,
         metavar="FREQ",
-        help="cut-off frequency of that continuation, in the files' unit (default: the third "
-        "sampled point above the first non-zero density)",
+        help="cut-off frequency of that continuation, in the files' unit (default: chosen above "
+        "the unresolved bottom of the data; a pure ω² law below a cut-off given here)",
     )
     table.add_argument(
         "--jobs",
@@ -277,7 +280,7 @@ class _Job:
     total: str | None
     per: str
     temperatures: np.ndarray
-    low_t: str | float = "fit"
+    low_t: str | float = "auto"
     low_t_cutoff: float | None = None
     molar_mass: float | None = None
 

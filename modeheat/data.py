@@ -130,7 +130,7 @@ def read_spectrum(
     columns: Sequence[str | int] | None = None,
     total: str | None = None,
     name: str | None = None,
-    low_t: str | float = "fit",
+    low_t: str | float = "auto",
     low_t_cutoff: float | None = None,
 ) -> Spectrum:
     """Read a density of states from a text file of columns.

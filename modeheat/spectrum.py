@@ -39,13 +39,10 @@ from ._engine import DebyeBranch, ModeSet
 from .errors import InputError, SpectrumWarning
 from .units import check_unit, kelvin_per
 
-__all__ = ["Spectrum", "ReducedDensity", "debye_temperature_from_sound"]
+__all__ = ["Spectrum", "ReducedDensity", "debye_temperature_from_sound", "LOW_T_CHOICES"]
 
 _NOISE = 1e-2  # negative densities up to this fraction of the peak are clipped as noise
 _GAUSS = np.polynomial.legendre.leggauss(4)
-_MIN_MODES_FOR_FIT = 200
-_FIT_MODES = 20
-_FIT_FRACTION = 1e-4
 
 
 @dataclass(frozen=True)
@@ -215,8 +212,7 @@ class Spectrum:
         "_atoms",
         "_name",
         "_low_t",
-        "_cutoff_k",
-        "_fit_theta",
+        "_continuation",
         "_raw_integral",
         "_modeset",
     )
@@ -230,7 +226,7 @@ class Spectrum:
         atoms: float = 1,
         partials: Mapping[str, object] | None = None,
         name: str | None = None,
-        low_t: str | float = "fit",
+        low_t: str | float = "auto",
         low_t_cutoff: float | None = None,
     ):
         unit = check_unit(unit)
@@ -259,7 +255,7 @@ class Spectrum:
             raise InputError("density is zero everywhere: no modes")
 
         theta = f * kelvin_per(unit)
-        ms, scale, cutoff_k, fit_theta = _sampled_modeset(theta, g, atoms, low_t, low_t_cutoff, unit, who)
+        ms, scale, cont = _sampled_modeset(theta, g, atoms, low_t, low_t_cutoff, unit, who)
         scale *= kelvin_per(unit)  # the engine integrates over θ in K, the density is per `unit`
         self._set(
             kind="sampled",
@@ -270,8 +266,7 @@ class Spectrum:
             atoms=atoms,
             name=name,
             low_t=low_t,
-            cutoff_k=cutoff_k,
-            fit_theta=fit_theta,
+            continuation=cont,
             raw_integral=float(np.trapezoid(g, f)),
             modeset=ms,
         )
@@ -308,7 +303,7 @@ class Spectrum:
         atoms: float = 1,
         partials: Mapping[str, object] | None = None,
         name: str | None = None,
-        low_t: str | float = "fit",
+        low_t: str | float = "auto",
         low_t_cutoff: float | None = None,
         bins: int | None = None,
     ) -> "Spectrum":
@@ -331,7 +326,7 @@ class Spectrum:
         atoms = _check_atoms(atoms)
         low_t = _check_low_t(low_t)
         if low_t == "extrapolate":
-            raise InputError("low_t='extrapolate' works on sampled spectra; use 'fit' or a Debye temperature")
+            raise InputError("low_t='extrapolate' works on sampled spectra; use 'auto', 'fit' or a Debye temperature")
         who = _label(name)
         f = _vector("frequencies", frequencies)
         w = np.ones_like(f) if weights is None else _vector("weights", weights)
@@ -359,7 +354,7 @@ class Spectrum:
         theta = f * kelvin_per(unit)
         total_w = float(w.sum())
         scale = 3.0 * atoms / total_w
-        ms, cutoff_k, fit_theta = _modes_modeset(theta, w * scale, atoms, low_t, low_t_cutoff, unit, who)
+        ms, cont = _modes_modeset(theta, w * scale, atoms, low_t, low_t_cutoff, unit, who)
 
         nbins = bins or int(np.clip(2 * math.sqrt(f.size), 50, 2000))
         top = float(f.max()) if f.max() > 0 else 1.0
@@ -377,8 +372,7 @@ class Spectrum:
             atoms=atoms,
             name=name,
             low_t=low_t,
-            cutoff_k=cutoff_k,
-            fit_theta=fit_theta,
+            continuation=cont,
             raw_integral=total_w,
             modeset=ms,
         )
@@ -393,7 +387,7 @@ class Spectrum:
         atoms: float = 1,
         partials: Mapping[str, object] | None = None,
         name: str | None = None,
-        low_t: str | float = "fit",
+        low_t: str | float = "auto",
         low_t_cutoff: float | None = None,
     ) -> "Spectrum":
         """A spectrum from mode counts in frequency bins (flat density inside each bin).
@@ -415,7 +409,7 @@ class Spectrum:
         atoms = _check_atoms(atoms)
         low_t = _check_low_t(low_t)
         if low_t == "extrapolate":
-            raise InputError("low_t='extrapolate' works on sampled spectra; use 'fit' or a Debye temperature")
+            raise InputError("low_t='extrapolate' works on sampled spectra; use 'auto', 'fit' or a Debye temperature")
         who = _label(name)
         e = _vector("edges", edges)
         c = _vector("counts", counts)
@@ -449,7 +443,7 @@ class Spectrum:
             raise InputError("counts are zero everywhere: no modes")
         theta = e * kelvin_per(unit)
         total = float(c.sum())
-        ms, cutoff_k, fit_theta = _histogram_modeset(theta, c * (3.0 * atoms / total), atoms, low_t, low_t_cutoff, unit)
+        ms, cont = _histogram_modeset(theta, c * (3.0 * atoms / total), atoms, low_t, low_t_cutoff, unit, who)
         width = np.diff(e)
         scale = 3.0 * atoms / total
         return cls._from_parts(
@@ -461,8 +455,7 @@ class Spectrum:
             atoms=atoms,
             name=name,
             low_t=low_t,
-            cutoff_k=cutoff_k,
-            fit_theta=fit_theta,
+            continuation=cont,
             raw_integral=total,
             modeset=ms,
         )
@@ -509,13 +502,35 @@ class Spectrum:
 
     @property
     def low_t(self) -> str | float:
-        """The low-temperature continuation: "fit", "off" or a Debye temperature in K."""
+        """The low-temperature continuation asked for: "auto", "fit", "extrapolate", "off" or a
+        Debye temperature in K."""
         return self._low_t
+
+    @property
+    def low_t_method(self) -> str:
+        """The low-temperature continuation applied (module docstring): "auto" (the ω² law
+        fitted above the unresolved bottom), "fit", "extrapolate", "theta" (θ_D(0) given)
+        or "off" (none: asked for, or the data have no ω² bottom)."""
+        return self._continuation.method
 
     @property
     def low_t_cutoff(self) -> float:
         """Cut-off frequency of the low-temperature continuation, in :attr:`unit` (0 when off)."""
-        return self._cutoff_k / kelvin_per(self._unit)
+        return self._continuation.cutoff / kelvin_per(self._unit)
+
+    @property
+    def low_t_summary(self) -> str:
+        """The continuation applied, in words (as tables and their files state it)."""
+        c = self._continuation
+        if c.method == "off":
+            return "off (no continuation: the data as they are)"
+        law = {
+            "auto": f"ω² law fitted above the unresolved bottom, θ_D(0) = {c.theta:.5g} K",
+            "fit": "ω² branch with the data's own modes",
+            "extrapolate": f"ω² extrapolated from the lowest 2 % of the modes, θ_D(0) = {c.theta:.5g} K",
+            "theta": f"ω² law of the θ_D(0) = {c.theta:.5g} K given",
+        }[c.method]
+        return f"{c.method} ({law}) below {self.low_t_cutoff:.5g} {self._unit}"
 
     def modeset(self) -> ModeSet:
         """The evaluation engine's view of this spectrum (used by :func:`modeheat.thermo`)."""
@@ -536,7 +551,7 @@ class Spectrum:
         )
         return Spectrum._from_parts(**parts)
 
-    def with_low_t(self, low_t: str | float = "fit", low_t_cutoff: float | None = None) -> "Spectrum":
+    def with_low_t(self, low_t: str | float = "auto", low_t_cutoff: float | None = None) -> "Spectrum":
         """The same sampled data with another low-temperature continuation (sampled spectra only)."""
         if self._kind != "sampled":
             raise InputError(f"with_low_t needs sampled data; build this {self._kind} spectrum again instead")
@@ -566,8 +581,8 @@ class Spectrum:
         """
         if not n >= -3:
             raise InputError(f"moment order must be ≥ −3, not {n!r}")
-        if n == -3 and self._low_t == "off":
-            return self._fit_theta
+        if n == -3 and self._continuation.method == "off":
+            return self._continuation.theta
         return self._modeset.moment_theta(n)
 
     def reduced_density(self) -> ReducedDensity:
@@ -582,7 +597,7 @@ class Spectrum:
         name = f"{self._name!r}, " if self._name else ""
         return (
             f"Spectrum({name}{self._frequency.size} points, 0–{self._frequency.max():.4g} {self._unit}, "
-            f"atoms={self._atoms:g}, low_t={self._low_t!r})"
+            f"atoms={self._atoms:g}, low_t={self._low_t!r}: {self.low_t_summary})"
         )
 
 
@@ -592,15 +607,23 @@ def _readonly(a: np.ndarray) -> np.ndarray:
     return a
 
 
+#: The low-temperature continuations that can be asked for by name (else a θ_D(0) in K).
+LOW_T_CHOICES = ("auto", "fit", "extrapolate", "off")
+
+
 def _check_low_t(low_t):
     if isinstance(low_t, str):
-        if low_t in ("fit", "off", "extrapolate"):
+        if low_t in LOW_T_CHOICES:
             return low_t
-        raise InputError(f"low_t must be 'fit', 'extrapolate', 'off' or a Debye temperature in K, not {low_t!r}")
+        raise InputError(
+            f"low_t must be 'auto', 'fit', 'extrapolate', 'off' or a Debye temperature in K, not {low_t!r}"
+        )
     try:
         value = float(low_t)
     except (TypeError, ValueError):
-        raise InputError(f"low_t must be 'fit', 'off' or a Debye temperature in K, not {low_t!r}") from None
+        raise InputError(
+            f"low_t must be 'auto', 'fit', 'extrapolate', 'off' or a Debye temperature in K, not {low_t!r}"
+        ) from None
     if not (math.isfinite(value) and value > 0):
         raise InputError(f"a Debye temperature for low_t must be positive, not {low_t!r}")
     return value
@@ -644,79 +667,287 @@ def _drop_imaginary(f, g, parts, who, order):
     return f[sl], g[sl], {k: v[sl] for k, v in parts.items()}
 
 
-def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
-    """Nodes of a sampled density and its continuation.
+# --- the low-temperature continuation: one resolver for every kind of input -------------------
+#
+# Each constructor hands the bottom of its data to `_resolve` as mode counts at sample
+# points (`_LowEnd`), gets back a `_Continuation` (method, cut-off ω_c and the law below it),
+# keeps its own nodes above ω_c and lets `_continued` add the branch below.
 
-    Returns (ModeSet, scale from the given density to the normalised one, ω_c in K,
-    θ_D(0) of the fit in K).
+_WINDOW_TOPS = (0.010, 0.015, 0.020)  # fit windows end where the data hold these fractions of 3 modes
+_WINDOW_STARTS = (0.25, 0.30, 0.35)  # ... and start at these fractions of their end
+_ARTEFACT = 0.03  # ω_c: the fitted resolution term is below 3 % of the ω² law's mode count
+_EXPONENT = (2.4, 4.5)  # N(ω) ∝ ω^p with p in this range passes for an ω² bottom
+_MIN_POSITIVE = 4  # sample points holding modes needed to judge the bottom at all
+_LAW_NODES = np.polynomial.legendre.leggauss(8)  # the ω⁴ part of the law on [0, ω_c]
+
+
+@dataclass(frozen=True)
+class _LowEnd:
+    """The bottom of a spectrum as the resolver sees it.
+
+    theta : ndarray — sample points in K, increasing, theta[0] = 0 where the data reach 0
+    count : ndarray — modes below each point, normalised to 3·atoms in all
+    counted : bool — exact counts (bins, modes): the fit takes the counts, with a free
+        constant for extra modes at the bottom (Γ's zero modes); otherwise a density
+        interpolated between the points: the fit takes each interval's mean density, with
+        a free constant density for what the unresolved bottom spreads upwards (a
+        tetrahedron DOS undercounts it, a smeared DOS leaks states down into it)
     """
-    # With the ω² continuation the data are read as ω²-like (linear in g/ω²); without it,
-    # as they are (linear in g), which is right for any low-frequency shape.
-    ratio_form = np.full(theta.size - 1, low_t != "off")
-    if low_t != "off" and theta[0] > 0:
-        # Below the first sample the density continues as ω² (g/ω² constant) down to 0.
-        theta, g = np.concatenate(([0.0], theta)), np.concatenate(([0.0], g))
-        ratio_form = np.ones(theta.size - 1, dtype=bool)
-    positive = np.flatnonzero(g > 0)
-    if cutoff is None:
-        wc = float(theta[min(int(positive[0]) + 3, theta.size - 1)])
+
+    theta: np.ndarray
+    count: np.ndarray
+    counted: bool
+
+
+@dataclass(frozen=True)
+class _Continuation:
+    """What the resolver chose.
+
+    method : "auto" (the ω² law fitted above the unresolved bottom), "fit" (an ω² branch
+        with the data's own mode count below ω_c), "extrapolate", "theta" (θ_D(0) given)
+        or "off"
+    cutoff : float — ω_c in K (0 when off)
+    a, b : float — below ω_c, g = a·θ² + b·θ⁴ in modes per K (normalised); unused by "fit"
+    theta : float — θ_D(0) in K: the one given, or for "off" the data's own estimate
+    """
+
+    method: str
+    cutoff: float = 0.0
+    a: float = 0.0
+    b: float = 0.0
+    theta: float = math.inf
+
+
+@dataclass(frozen=True)
+class _BottomFit:
+    a: float
+    b: float
+    cutoff: float
+
+
+def _acoustic_doubt(low: _LowEnd) -> str | None:
+    """Why the bottom of the data is not an ω² rise (None when it is, or when too coarse to tell)."""
+    x, n = low.theta, low.count
+    pos = np.flatnonzero(n > n[0])
+    if pos.size < _MIN_POSITIVE:
+        return f"too few sampled modes ({pos.size} point(s) with modes) to judge the low-frequency end"
+    if pos[0] > 1 and x[pos[0] - 1] > 0:
+        return f"no modes below {x[pos[0] - 1]:.4g} K (a gap, or an optical peak at the bottom)"
+    top = float(np.interp(3.0 * _WINDOW_TOPS[-1], n, x))
+    if np.count_nonzero(x[pos] < 0.5 * top) >= 4:
+        upper = float(np.interp(top, x, n)) - n[0]
+        lower = float(np.interp(0.5 * top, x, n)) - n[0]
+        p = math.log2(upper / lower) if lower > 0 else math.inf
+        if not _EXPONENT[0] <= p <= _EXPONENT[1]:
+            return f"the mode count below {top:.4g} K grows as ω^{p:.2g}, not as ω³ (a gap or no acoustic branch)"
+    return None
+
+
+def _window_fit(low: _LowEnd, lo: float, hi: float, a_fixed: float | None) -> _BottomFit | None:
+    """Least squares of the ω² + ω⁴ law plus a resolution term over [lo, hi] K."""
+    x, n = low.theta, low.count
+    if low.counted:
+        m = (x >= lo) & (x <= hi)
+        t = x[m] / hi
+        y = n[m]
+        law = [t**3 / 3.0, t**5 / 5.0]
+        weight = 1.0 / t**2  # relative residuals: N grows as t³
+        powers = (3, 5)
     else:
-        wc = float(cutoff) * kelvin_per(unit)
-        if not (math.isfinite(wc) and 0 < wc < theta[-1]):
-            raise InputError(f"low_t_cutoff must lie inside the frequency grid, not {cutoff!r}")
-    nodes_all, w_all = _interval_nodes(theta, g, 0.0, ratio_form)
-    raw = float(w_all.sum())
-    below = float(w_all[nodes_all < wc].sum())
-    # n_c = 3·atoms·below/raw modes below ω_c ⇒ θ_D(0) = ω_c·(3·atoms/n_c)^(1/3)
-    fit_theta = wc * (raw / below) ** (1.0 / 3.0) if below > 0 else math.inf
+        a, b = x[:-1], x[1:]
+        m = (a >= lo) & (b <= hi)
+        ta, tb = a[m] / hi, b[m] / hi
+        dt = tb - ta
+        y = np.diff(n)[m] / (dt * hi)
+        law = [(tb**3 - ta**3) / (3.0 * dt), (tb**5 - ta**5) / (5.0 * dt)]
+        weight = 2.0 / (ta + tb)  # residuals in g relative to g/θ
+        powers = (2, 4)
+    if a_fixed is not None:
+        y = y - a_fixed * hi ** powers[0] * law[0]
+        law = law[1:]
+    cols = np.column_stack([np.ones(y.size), *law])
+    if y.size < cols.shape[1] + 2:
+        return None
+    A = cols * weight[:, None]
+    norm = np.linalg.norm(A, axis=0)
+    coef, *_ = np.linalg.lstsq(A / norm, y * weight, rcond=None)
+    coef = coef / norm
+    artefact = float(coef[0])
+    a = a_fixed if a_fixed is not None else float(coef[1]) / hi ** powers[0]
+    b = float(coef[-1]) / hi ** powers[1]
+    if not a > 0:
+        return None
+    # ω_c: counts scatter with the mesh's shells, so the law replaces the whole window;
+    # a density is kept from where the fitted resolution term (c₀·ω in the count) is small
+    if low.counted:
+        wc = hi
+    else:
+        wc = min(max(math.sqrt(3.0 * abs(artefact) / (_ARTEFACT * a)), lo), hi)
+    if b < 0:
+        wc = min(wc, math.sqrt(0.5 * a / -b))  # keep a·θ² + b·θ⁴ ≥ a·θ²/2 below ω_c
+    return _BottomFit(a, b, wc)
+
+
+def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
+    """The median (in a, or in b when a is given) of the fits over several windows."""
+    fits = []
+    for q in _WINDOW_TOPS:
+        top = float(np.interp(3.0 * q, low.count, low.theta))
+        for r in _WINDOW_STARTS:
+            f = _window_fit(low, r * top, top, a_fixed)
+            if f is not None:
+                fits.append(f)
+    if len(fits) <= len(_WINDOW_TOPS) * len(_WINDOW_STARTS) // 2:
+        return None
+    fits.sort(key=(lambda f: f.b) if a_fixed is not None else (lambda f: f.a))
+    return fits[len(fits) // 2]
+
+
+def _first_points_cutoff(low: _LowEnd) -> float:
+    """The third sample point above the first one holding modes (the cut-off of coarse data)."""
+    j = int(np.flatnonzero(low.count > 0)[0])
+    return float(low.theta[min(j + 3, low.theta.size - 1)])
+
+
+def _resolve(low: _LowEnd, atoms: float, low_t, cutoff_k: float | None, who: str) -> _Continuation:
+    """The low-temperature continuation of one spectrum (rules in the module docstring)."""
+    given = not isinstance(low_t, str)
+    doubt = _acoustic_doubt(low)
     if low_t == "off":
-        scale = 3.0 * atoms / raw
-        if theta[0] > 0:
-            return ModeSet(nodes_all, w_all * scale, atoms=atoms), scale, 0.0, fit_theta
-        # The interval from ω = 0, linear in g, is exactly a flat (dim 1) plus a linear
-        # (dim 2) Debye branch; quadrature nodes would miss the ln ω of S and F there.
-        nodes, w = _interval_nodes(theta, g, theta[1], ratio_form)
-        w1, g0, g1 = theta[1], g[0], g[1]
-        branches = tuple(
-            DebyeBranch(w1, m * scale, d) for m, d in ((g0 * w1, 1), (0.5 * (g1 - g0) * w1, 2)) if m != 0
+        fit = None if doubt else _fit_bottom(low, None)
+        return _Continuation("off", theta=(9.0 * atoms / fit.a) ** (1.0 / 3.0) if fit else math.inf)
+    if doubt and low_t == "auto":
+        warnings.warn(
+            f"{who}: {doubt}: no ω² low-temperature continuation, the data are used as they are "
+            "(pass low_t=θ_D(0) if the lowest modes are acoustic)",
+            SpectrumWarning,
+            stacklevel=4,
         )
-        return ModeSet(nodes, w * scale, branches=branches, atoms=atoms), scale, 0.0, fit_theta
-    if low_t == "extrapolate":
-        return _extrapolated_modeset(theta, g, atoms, cutoff, unit, ratio_form, positive)
-    nodes, w = _interval_nodes(theta, g, wc, ratio_form)
-    if low_t == "fit":
-        if below <= 0:
+        return _Continuation("off")
+    a_fixed = 9.0 * atoms / low_t**3 if given else None
+    needed = not doubt and (cutoff_k is None or low_t == "auto")
+    fit = _fit_bottom(low, a_fixed) if needed else None
+    if cutoff_k is not None:
+        wc, b = cutoff_k, 0.0
+    elif fit is not None:
+        wc, b = fit.cutoff, fit.b
+    else:
+        wc, b = _first_points_cutoff(low), 0.0
+    if given:
+        return _Continuation("theta", wc, a_fixed, b, theta=low_t)
+    if low_t == "fit" or fit is None:
+        return _Continuation("fit", wc)
+    return _Continuation("auto", wc, fit.a, b, theta=(9.0 * atoms / fit.a) ** (1.0 / 3.0))
+
+
+def _continued(nodes: np.ndarray, weights: np.ndarray, atoms: float, cont: _Continuation, who: str):
+    """ModeSet of the data above ω_c plus the law below it; returns (ModeSet, scale of the data).
+
+    `weights` are normalised so that all of the data hold 3·atoms modes.  With θ_D(0)
+    given the law's modes are fixed and the data above fill the rest; otherwise the law
+    and the data above are scaled together to 3·atoms.
+    """
+    wc = cont.cutoff
+    above = float(weights.sum())
+    n4 = 0.0
+    if cont.method == "fit":
+        scale = 1.0
+        n2 = 3.0 * atoms - above
+        if n2 <= 1e-12 * atoms:
             warnings.warn(
                 f"{who}: no modes below the low-temperature cut-off {wc:.4g} K, so the ω² continuation "
                 "is empty and C_v falls faster than T³; pass low_t=θ_D to set one",
                 SpectrumWarning,
-                stacklevel=3,
+                stacklevel=4,
             )
-        scale = 3.0 * atoms / raw
-        n_c = below * scale
+            n2 = 0.0
     else:
-        n_c = 3.0 * atoms * (wc / low_t) ** 3
-        if n_c >= 3.0 * atoms:
-            raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
-        scale = (3.0 * atoms - n_c) / float(w.sum())
-    branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()
-    return ModeSet(nodes, w * scale, branches=branches, atoms=atoms), scale, wc, fit_theta
+        n2 = cont.a * wc**3 / 3.0
+        n4 = cont.b * wc**5 / 5.0
+        if cont.method == "theta":
+            if n2 + n4 >= 3.0 * atoms or above <= 0:
+                raise InputError(f"low_t = {cont.theta:g} K puts all modes below the cut-off {wc:.4g} K")
+            scale = (3.0 * atoms - n2 - n4) / above
+        else:
+            scale = 3.0 * atoms / (above + n2 + n4)
+            n2, n4 = n2 * scale, n4 * scale
+    branches = (DebyeBranch(wc, n2),) if n2 > 0 else ()
+    theta, weight = nodes, weights * scale
+    if n4 != 0.0:
+        # the ω⁴ part of the law: smooth, so Gauss–Legendre nodes on [0, ω_c] carry it
+        t, w = _LAW_NODES
+        law = 0.5 * wc * (t + 1.0)
+        theta = np.concatenate((theta, law))
+        weight = np.concatenate((weight, n4 * 5.0 * law**4 / wc**5 * 0.5 * wc * w))
+    return ModeSet(theta, weight, branches=branches, atoms=atoms), scale
+
+
+def _cutoff_kelvin(cutoff, unit: str, lo: float, hi: float, where: str) -> float | None:
+    """A given cut-off in K, checked to lie in (lo, hi) K."""
+    if cutoff is None:
+        return None
+    wc = float(cutoff) * kelvin_per(unit)
+    if not (math.isfinite(wc) and lo < wc < hi):
+        raise InputError(f"low_t_cutoff must lie inside {where}, not {cutoff!r}")
+    return wc
+
+
+def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
+    """Nodes of a sampled density and its continuation.
+
+    Returns (ModeSet, scale from the given density to the normalised one, _Continuation).
+    """
+    cutoff_k = _cutoff_kelvin(cutoff, unit, 0.0, theta[-1], "the frequency grid")
+    # With the ω² continuation the data are read as ω²-like (linear in g/ω²), and below the
+    # first sample the density continues as ω² (g/ω² constant) down to 0.
+    th, gg = (theta, g) if theta[0] == 0 else (np.concatenate(([0.0], theta)), np.concatenate(([0.0], g)))
+    ratio_form = np.ones(th.size - 1, dtype=bool)
+    nodes_all, w_all = _interval_nodes(th, gg, 0.0, ratio_form)
+    norm = 3.0 * atoms / float(w_all.sum())
+    per_interval = w_all.reshape(-1, _GAUSS[0].size).sum(axis=1) * norm
+    low = _LowEnd(th, np.concatenate(([0.0], np.cumsum(per_interval))), counted=False)
+    if low_t == "extrapolate":
+        cont = _extrapolated(th, gg * norm, atoms, cutoff_k)
+    else:
+        cont = _resolve(low, atoms, low_t, cutoff_k, who)
+    if cont.method == "off":
+        return (*_sampled_as_is(theta, g, atoms), cont)
+    nodes, w = _interval_nodes(th, gg, cont.cutoff, ratio_form)
+    ms, scale = _continued(nodes, w * norm, atoms, cont, who)
+    return ms, scale * norm, cont
+
+
+def _sampled_as_is(theta, g, atoms):
+    """ModeSet of a sampled density read linearly in g, without continuation; and its scale."""
+    ratio_form = np.zeros(theta.size - 1, dtype=bool)
+    nodes_all, w_all = _interval_nodes(theta, g, 0.0, ratio_form)
+    scale = 3.0 * atoms / float(w_all.sum())
+    if theta[0] > 0:
+        return ModeSet(nodes_all, w_all * scale, atoms=atoms), scale
+    # The interval from ω = 0, linear in g, is exactly a flat (dim 1) plus a linear
+    # (dim 2) Debye branch; quadrature nodes would miss the ln ω of S and F there.
+    nodes, w = _interval_nodes(theta, g, theta[1], ratio_form)
+    w1, g0, g1 = theta[1], g[0], g[1]
+    branches = tuple(
+        DebyeBranch(w1, m * scale, d) for m, d in ((g0 * w1, 1), (0.5 * (g1 - g0) * w1, 2)) if m != 0
+    )
+    return ModeSet(nodes, w * scale, branches=branches, atoms=atoms), scale
 
 
 _EXTRAPOLATE_FRACTION = 0.02  # the fit window holds the lowest 2 % of the modes
 _EXTRAPOLATE_AGREE = 0.05  # data above ω_c follow the fitted g/ω² within 5 %
 
 
-def _extrapolated_modeset(theta, g, atoms, cutoff, unit, ratio_form, positive):
-    """The ω² branch extrapolated from the resolved low-frequency part.
+def _extrapolated(theta, g, atoms, cutoff_k):
+    """low_t="extrapolate": the ω² coefficient extrapolated from the resolved low-frequency part.
 
     g = a·ω² + b·ω⁴ is fitted by least squares in g over the lowest 2 % of the modes, so
     the poorly resolved lowest points (small g) weigh little; a is the T → 0 coefficient.
-    The branch replaces the data below ω_c, the lowest point from which every point of
-    the window follows the fit within 5 % (or `cutoff`).
+    The branch a·ω² replaces the data below ω_c, the lowest point from which every point
+    of the window follows the fit within 5 % (or the cut-off given).
     """
     counts = np.concatenate(([0.0], np.cumsum(0.5 * (g[1:] + g[:-1]) * np.diff(theta))))
-    first = int(positive[0])
+    first = int(np.flatnonzero(g > 0)[0])
     i_hi = max(int(np.searchsorted(counts, _EXTRAPOLATE_FRACTION * counts[-1])), first + 8)
     idx = np.arange(max(first, 1), min(i_hi, theta.size - 1) + 1)
     idx = idx[theta[idx] > 0]
@@ -729,54 +960,31 @@ def _extrapolated_modeset(theta, g, atoms, cutoff, unit, ratio_form, positive):
             "low_t='extrapolate': the low-frequency density does not extrapolate to a positive ω² "
             "coefficient; pass low_t=θ_D(0) instead"
         )
-    if cutoff is None:
+    if cutoff_k is None:
         model = a + b * t**2
         off = np.abs(g[idx] / t**2 - model) > _EXTRAPOLATE_AGREE * np.abs(model)
         j = int(np.flatnonzero(off)[-1]) + 1 if off.any() else 0
         wc = float(t[min(j, t.size - 1)])
     else:
-        wc = float(cutoff) * kelvin_per(unit)
-        if not (math.isfinite(wc) and 0 < wc < theta[-1]):
-            raise InputError(f"low_t_cutoff must lie inside the frequency grid, not {cutoff!r}")
-    nodes, w = _interval_nodes(theta, g, wc, ratio_form)
-    n_c_raw = a * wc**3 / 3.0
-    scale = 3.0 * atoms / (float(w.sum()) + n_c_raw)
-    n_c = n_c_raw * scale
-    fit_theta = wc * (3.0 * atoms / n_c) ** (1.0 / 3.0)
-    return ModeSet(nodes, w * scale, branches=(DebyeBranch(wc, n_c),), atoms=atoms), scale, wc, fit_theta
+        wc = cutoff_k
+    return _Continuation("extrapolate", wc, float(a), 0.0, theta=(9.0 * atoms / a) ** (1.0 / 3.0))
+
+
+def _mode_low_end(theta: np.ndarray, w: np.ndarray) -> _LowEnd:
+    """Counts of a list of modes: at each distinct frequency, the modes below plus half of its own."""
+    uniq, inverse = np.unique(theta, return_inverse=True)
+    own = np.bincount(inverse, weights=w)
+    mid = np.cumsum(own) - 0.5 * own
+    zero = float(own[0]) if uniq[0] == 0 else 0.0
+    pos = uniq > 0
+    return _LowEnd(np.concatenate(([0.0], uniq[pos])), np.concatenate(([zero], mid[pos])), counted=True)
 
 
 def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
-    """ModeSet of individual (normalised) modes with the continuation; returns (ModeSet, ω_c, θ fit)."""
-    n = theta.size
-    fit_theta = math.inf
-    if n >= _MIN_MODES_FOR_FIT:
-        k = max(_FIT_MODES, math.ceil(_FIT_FRACTION * n))
-        wc = float(np.partition(theta, k - 1)[k - 1])
-    else:
-        positive = theta[theta > 0]
-        wc = float(positive.min()) if positive.size else 0.0
-    if cutoff is not None:
-        wc = float(cutoff) * kelvin_per(unit)
-        if not (math.isfinite(wc) and wc > 0):
-            raise InputError(f"low_t_cutoff must be a positive frequency, not {cutoff!r}")
-    low = theta <= wc
-    n_c = float(w[low].sum())
-    theta_c = 0.0
-    if n_c > 0 and wc > 0:
-        # Modes of an ω² branch have θ³ uniform on [0, θ_c³]: θ_c³ = 2⟨θ³⟩ uses all of them.
-        theta_c = (2.0 * float(np.dot(w[low], theta[low] ** 3)) / n_c) ** (1.0 / 3.0)
-        if theta_c > 0:
-            fit_theta = theta_c * (3.0 * atoms / n_c) ** (1.0 / 3.0)
-    few = low_t == "fit" and n < _MIN_MODES_FOR_FIT and cutoff is None
-    if few:
-        warnings.warn(
-            f"{who}: only {n} modes, too few to fit a low-temperature ω² continuation; none used "
-            "(pass low_t=θ_D to set one)",
-            SpectrumWarning,
-            stacklevel=3,
-        )
-    if low_t == "off" or few or wc == 0.0:
+    """ModeSet of individual (normalised) modes with the continuation; returns (ModeSet, _Continuation)."""
+    cutoff_k = _cutoff_kelvin(cutoff, unit, 0.0, math.inf, "(0, ∞)")
+    cont = _resolve(_mode_low_end(theta, w), atoms, low_t, cutoff_k, who)
+    if cont.method == "off":
         zero = theta <= 0
         if zero.any():
             warnings.warn(
@@ -786,16 +994,10 @@ def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
                 stacklevel=3,
             )
         keep = ~zero
-        return ModeSet(theta[keep], w[keep] * (3.0 * atoms / w[keep].sum()), atoms=atoms), 0.0, fit_theta
-    rest = w[~low]
-    if low_t == "fit":
-        branches = (DebyeBranch(theta_c, n_c),) if theta_c > 0 else ()
-        return ModeSet(theta[~low], rest, branches=branches, atoms=atoms), wc, fit_theta
-    n_c = 3.0 * atoms * (wc / low_t) ** 3
-    if n_c >= 3.0 * atoms or rest.sum() <= 0:
-        raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
-    rest = rest * ((3.0 * atoms - n_c) / rest.sum())
-    return ModeSet(theta[~low], rest, branches=(DebyeBranch(wc, n_c),), atoms=atoms), wc, fit_theta
+        return ModeSet(theta[keep], w[keep] * (3.0 * atoms / w[keep].sum()), atoms=atoms), cont
+    above = theta > cont.cutoff
+    ms, _ = _continued(theta[above], w[above], atoms, cont, who)
+    return ms, cont
 
 
 def _bin_nodes(edges: np.ndarray, counts: np.ndarray, lo: float):
@@ -810,31 +1012,18 @@ def _bin_nodes(edges: np.ndarray, counts: np.ndarray, lo: float):
     return nodes.ravel(), (dens[:, None] * half[:, None] * w[None, :]).ravel()
 
 
-def _histogram_modeset(theta, counts, atoms, low_t, cutoff, unit):
-    """ModeSet of normalised bin counts with the continuation; returns (ModeSet, ω_c, θ fit)."""
-    filled = np.flatnonzero(counts > 0)
-    if cutoff is None:
-        wc = float(theta[min(int(filled[0]) + 3, theta.size - 1)])
-    else:
-        wc = float(cutoff) * kelvin_per(unit)
-        if not (math.isfinite(wc) and theta[0] < wc < theta[-1]):
-            raise InputError(f"low_t_cutoff must lie inside the histogram, not {cutoff!r}")
-    nodes_all, w_all = _bin_nodes(theta, counts, theta[0])
-    below = float(np.sum(counts * np.clip((wc - theta[:-1]) / np.diff(theta), 0, 1)))
-    fit_theta = wc * (3.0 * atoms / below) ** (1.0 / 3.0) if below > 0 else math.inf
-    if low_t == "off":
+def _histogram_modeset(theta, counts, atoms, low_t, cutoff, unit, who):
+    """ModeSet of normalised bin counts with the continuation; returns (ModeSet, _Continuation)."""
+    cutoff_k = _cutoff_kelvin(cutoff, unit, theta[0], theta[-1], "the histogram")
+    low = _LowEnd(theta, np.concatenate(([0.0], np.cumsum(counts))), counted=True)
+    cont = _resolve(low, atoms, low_t, cutoff_k, who)
+    if cont.method == "off":
+        nodes_all, w_all = _bin_nodes(theta, counts, theta[0])
         if theta[0] > 0 or counts[0] == 0:
-            return ModeSet(nodes_all, w_all, atoms=atoms), 0.0, fit_theta
+            return ModeSet(nodes_all, w_all, atoms=atoms), cont
         # A flat bin from ω = 0 is exactly a one-dimensional Debye branch.
         nodes, w = _bin_nodes(theta, counts, theta[1])
-        return ModeSet(nodes, w, branches=(DebyeBranch(theta[1], counts[0], 1),), atoms=atoms), 0.0, fit_theta
-    nodes, w = _bin_nodes(theta, counts, wc)
-    if low_t == "fit":
-        n_c = below
-    else:
-        n_c = 3.0 * atoms * (wc / low_t) ** 3
-        if n_c >= 3.0 * atoms:
-            raise InputError(f"low_t = {low_t:g} K puts all modes below the cut-off {wc:.4g} K")
-        w = w * ((3.0 * atoms - n_c) / w.sum())
-    branches = (DebyeBranch(wc, n_c),) if n_c > 0 else ()
-    return ModeSet(nodes, w, branches=branches, atoms=atoms), wc, fit_theta
+        return ModeSet(nodes, w, branches=(DebyeBranch(theta[1], counts[0], 1),), atoms=atoms), cont
+    nodes, w = _bin_nodes(theta, counts, cont.cutoff)
+    ms, _ = _continued(nodes, w, atoms, cont, who)
+    return ms, cont
