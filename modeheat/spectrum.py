@@ -673,9 +673,9 @@ def _drop_imaginary(f, g, parts, who, order):
 # points (`_LowEnd`), gets back a `_Continuation` (method, cut-off ω_c and the law below it),
 # keeps its own nodes above ω_c and lets `_continued` add the branch below.
 
-_WINDOW_TOPS = (0.010, 0.015, 0.020)  # fit windows end where the data hold these fractions of 3 modes
-_WINDOW_STARTS = (0.25, 0.30, 0.35)  # ... and start at these fractions of their end
-_ARTEFACT = 0.03  # ω_c: the fitted resolution term is below 3 % of the ω² law's mode count
+_WINDOW_TOPS = (0.008, 0.011, 0.015, 0.020, 0.025)  # fit windows end where the data hold these fractions of 3 modes
+_WINDOW_STARTS = (0.20, 0.25, 0.30, 0.35, 0.40)  # ... and start at these fractions of their end
+_ARTEFACT = 0.03  # ω_c of a density: its fitted resolution term is below 3 % of the ω² law's mode count
 _EXPONENT = (2.4, 4.5)  # N(ω) ∝ ω^p with p in this range passes for an ω² bottom
 _MIN_POSITIVE = 4  # sample points holding modes needed to judge the bottom at all
 _LAW_NODES = np.polynomial.legendre.leggauss(8)  # the ω⁴ part of the law on [0, ω_c]
@@ -685,18 +685,25 @@ _LAW_NODES = np.polynomial.legendre.leggauss(8)  # the ω⁴ part of the law on 
 class _LowEnd:
     """The bottom of a spectrum as the resolver sees it.
 
-    theta : ndarray — sample points in K, increasing, theta[0] = 0 where the data reach 0
+    theta : ndarray — sample points in K, increasing; theta[0] = 0 where the data reach 0
     count : ndarray — modes below each point, normalised to 3·atoms in all
-    counted : bool — exact counts (bins, modes): the fit takes the counts, with a free
-        constant for extra modes at the bottom (Γ's zero modes); otherwise a density
-        interpolated between the points: the fit takes each interval's mean density, with
-        a free constant density for what the unresolved bottom spreads upwards (a
-        tetrahedron DOS undercounts it, a smeared DOS leaks states down into it)
+    kind : str — how the counts came about, which decides the resolution term fitted
+        with the law:
+
+        * "density" — a density interpolated between the points: the fit takes each
+          interval's mean density, plus a free constant density for what the unresolved
+          bottom spreads upwards (a tetrahedron DOS undercounts it, a smeared one leaks
+          states down into it; either way a constant in g to first order);
+        * "bins" — exact counts at bin edges: the fit takes the counts, plus a free
+          constant count for what the first bins hold beyond the law (Γ's zero modes);
+        * "modes" — a list of modes, counted at each distinct frequency up to half its
+          own weight: the count at ω = 0 (zero modes) is known, so the fit takes the
+          counts above it with no free constant.
     """
 
     theta: np.ndarray
     count: np.ndarray
-    counted: bool
+    kind: str
 
 
 @dataclass(frozen=True)
@@ -744,45 +751,49 @@ def _acoustic_doubt(low: _LowEnd) -> str | None:
 
 
 def _window_fit(low: _LowEnd, lo: float, hi: float, a_fixed: float | None) -> _BottomFit | None:
-    """Least squares of the ω² + ω⁴ law plus a resolution term over [lo, hi] K."""
+    """Least squares of the ω² + ω⁴ law plus the resolution term of `low.kind` over [lo, hi] K.
+
+    Frequencies are scaled by `hi`; residuals are relative (weights 1/t² on counts ∝ t³,
+    2/(t_a + t_b) on mean densities ∝ t²).
+    """
     x, n = low.theta, low.count
-    if low.counted:
-        m = (x >= lo) & (x <= hi)
-        t = x[m] / hi
-        y = n[m]
-        law = [t**3 / 3.0, t**5 / 5.0]
-        weight = 1.0 / t**2  # relative residuals: N grows as t³
-        powers = (3, 5)
-    else:
-        a, b = x[:-1], x[1:]
-        m = (a >= lo) & (b <= hi)
-        ta, tb = a[m] / hi, b[m] / hi
+    if low.kind == "density":
+        xa, xb = x[:-1], x[1:]
+        m = (xa >= lo) & (xb <= hi)
+        ta, tb = xa[m] / hi, xb[m] / hi
         dt = tb - ta
         y = np.diff(n)[m] / (dt * hi)
         law = [(tb**3 - ta**3) / (3.0 * dt), (tb**5 - ta**5) / (5.0 * dt)]
-        weight = 2.0 / (ta + tb)  # residuals in g relative to g/θ
+        weight = 2.0 / (ta + tb)
         powers = (2, 4)
+        free = [np.ones(y.size)]
+    else:
+        m = (x >= lo) & (x <= hi) & (x > 0)
+        t = x[m] / hi
+        y = n[m] - (n[0] if low.kind == "modes" else 0.0)
+        law = [t**3 / 3.0, t**5 / 5.0]
+        weight = 1.0 / t**2
+        powers = (3, 5)
+        free = [np.ones(y.size)] if low.kind == "bins" else []
     if a_fixed is not None:
         y = y - a_fixed * hi ** powers[0] * law[0]
         law = law[1:]
-    cols = np.column_stack([np.ones(y.size), *law])
+    cols = np.column_stack(free + law)
     if y.size < cols.shape[1] + 2:
         return None
     A = cols * weight[:, None]
     norm = np.linalg.norm(A, axis=0)
     coef, *_ = np.linalg.lstsq(A / norm, y * weight, rcond=None)
     coef = coef / norm
-    artefact = float(coef[0])
-    a = a_fixed if a_fixed is not None else float(coef[1]) / hi ** powers[0]
+    a = a_fixed if a_fixed is not None else float(coef[len(free)]) / hi ** powers[0]
     b = float(coef[-1]) / hi ** powers[1]
     if not a > 0:
         return None
-    # ω_c: counts scatter with the mesh's shells, so the law replaces the whole window;
-    # a density is kept from where the fitted resolution term (c₀·ω in the count) is small
-    if low.counted:
-        wc = hi
+    if low.kind == "density":
+        # a density is kept from where its resolution term (c₀·ω in the count) is small
+        wc = min(max(math.sqrt(3.0 * abs(float(coef[0])) / (_ARTEFACT * a)), lo), hi)
     else:
-        wc = min(max(math.sqrt(3.0 * abs(artefact) / (_ARTEFACT * a)), lo), hi)
+        wc = hi  # counts scatter with the mesh's shells: the law replaces the whole window
     if b < 0:
         wc = min(wc, math.sqrt(0.5 * a / -b))  # keep a·θ² + b·θ⁴ ≥ a·θ²/2 below ω_c
     return _BottomFit(a, b, wc)
@@ -905,7 +916,7 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
     nodes_all, w_all = _interval_nodes(th, gg, 0.0, ratio_form)
     norm = 3.0 * atoms / float(w_all.sum())
     per_interval = w_all.reshape(-1, _GAUSS[0].size).sum(axis=1) * norm
-    low = _LowEnd(th, np.concatenate(([0.0], np.cumsum(per_interval))), counted=False)
+    low = _LowEnd(th, np.concatenate(([0.0], np.cumsum(per_interval))), "density")
     if low_t == "extrapolate":
         cont = _extrapolated(th, gg * norm, atoms, cutoff_k)
     else:
@@ -977,7 +988,7 @@ def _mode_low_end(theta: np.ndarray, w: np.ndarray) -> _LowEnd:
     mid = np.cumsum(own) - 0.5 * own
     zero = float(own[0]) if uniq[0] == 0 else 0.0
     pos = uniq > 0
-    return _LowEnd(np.concatenate(([0.0], uniq[pos])), np.concatenate(([zero], mid[pos])), counted=True)
+    return _LowEnd(np.concatenate(([0.0], uniq[pos])), np.concatenate(([zero], mid[pos])), "modes")
 
 
 def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
@@ -1015,7 +1026,7 @@ def _bin_nodes(edges: np.ndarray, counts: np.ndarray, lo: float):
 def _histogram_modeset(theta, counts, atoms, low_t, cutoff, unit, who):
     """ModeSet of normalised bin counts with the continuation; returns (ModeSet, _Continuation)."""
     cutoff_k = _cutoff_kelvin(cutoff, unit, theta[0], theta[-1], "the histogram")
-    low = _LowEnd(theta, np.concatenate(([0.0], np.cumsum(counts))), counted=True)
+    low = _LowEnd(theta, np.concatenate(([0.0], np.cumsum(counts))), "bins")
     cont = _resolve(low, atoms, low_t, cutoff_k, who)
     if cont.method == "off":
         nodes_all, w_all = _bin_nodes(theta, counts, theta[0])
