@@ -499,8 +499,9 @@ def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool
     """Write a thermodynamic table as CSV with a commented header.
 
     The file starts with ``#`` lines giving the caution, the basis (per mole of formula
-    units or of atoms), the unit of each column and, where the table says, its source
-    and zero-point energy; then the column names and the rows.  The text goes to a
+    units or of atoms), the unit of each column and, where the table says, its source,
+    the low-temperature continuation applied (method and cut-off) and the zero-point
+    energy; then the column names and the rows.  The text goes to a
     temporary file in the same folder that is renamed into place, so an interrupted
     write leaves any earlier file intact.
 
@@ -583,6 +584,8 @@ def _table_text(frame: pd.DataFrame) -> str:
     ]
     if attrs.get("source"):
         lines.append(f"source: {attrs['source']}")
+    if attrs.get("low_t"):
+        lines.append(f"low-temperature continuation: {attrs['low_t']}")
     zpe = attrs.get("zero_point_energy")
     if isinstance(zpe, (int, float)) and not isinstance(zpe, bool):
         unit_u = units.get("U", "J/mol")

@@ -750,68 +750,74 @@ def _acoustic_doubt(low: _LowEnd) -> str | None:
     return None
 
 
-def _window_fit(low: _LowEnd, lo: float, hi: float, a_fixed: float | None) -> _BottomFit | None:
-    """Least squares of the ω² + ω⁴ law plus the resolution term of `low.kind` over [lo, hi] K.
+def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
+    """The ω² + ω⁴ law fitted above the unresolved bottom, or None if the data are too coarse.
 
-    Frequencies are scaled by `hi`; residuals are relative (weights 1/t² on counts ∝ t³,
-    2/(t_a + t_b) on mean densities ∝ t²).
+    Each window [r·top, top] (top where the data hold a fraction q of 3 modes, for every
+    q in _WINDOW_TOPS and r in _WINDOW_STARTS) gets a least-squares fit of the law plus
+    the resolution term of `low.kind`, with relative residuals (weights 1/t² on counts ∝
+    t³, 2/(t_a + t_b) on mean densities ∝ t², t = θ/top).  The result is the fit with the
+    median a (median b when a is given), over the windows with enough points; there must
+    be more such windows than not.  All windows are solved as one batch.
     """
-    x, n = low.theta, low.count
+    tops = np.interp(3.0 * np.asarray(_WINDOW_TOPS), low.count, low.theta)
+    scale = float(tops.max())
+    if not scale > 0:
+        return None
+    # only the points around the windows matter (one below, for the density's intervals)
+    i0 = max(int(np.searchsorted(low.theta, min(_WINDOW_STARTS) * tops.min())) - 1, 0)
+    i1 = int(np.searchsorted(low.theta, scale, side="right")) + 1
+    x, n = low.theta[i0:i1], low.count[i0:i1]
     if low.kind == "density":
-        xa, xb = x[:-1], x[1:]
-        m = (xa >= lo) & (xb <= hi)
-        ta, tb = xa[m] / hi, xb[m] / hi
+        lo_x, hi_x = x[:-1], x[1:]
+        ta, tb = lo_x / scale, hi_x / scale
         dt = tb - ta
-        y = np.diff(n)[m] / (dt * hi)
+        y = np.diff(n) / (dt * scale)
         law = [(tb**3 - ta**3) / (3.0 * dt), (tb**5 - ta**5) / (5.0 * dt)]
-        weight = 2.0 / (ta + tb)
+        with np.errstate(divide="ignore"):
+            weight = 2.0 / (ta + tb)
         powers = (2, 4)
         free = [np.ones(y.size)]
     else:
-        m = (x >= lo) & (x <= hi) & (x > 0)
-        t = x[m] / hi
-        y = n[m] - (n[0] if low.kind == "modes" else 0.0)
+        lo_x = hi_x = x
+        t = x / scale
+        y = n - (low.count[0] if low.kind == "modes" else 0.0)
         law = [t**3 / 3.0, t**5 / 5.0]
-        weight = 1.0 / t**2
+        with np.errstate(divide="ignore"):
+            weight = 1.0 / t**2
         powers = (3, 5)
         free = [np.ones(y.size)] if low.kind == "bins" else []
     if a_fixed is not None:
-        y = y - a_fixed * hi ** powers[0] * law[0]
+        y = y - a_fixed * scale ** powers[0] * law[0]
         law = law[1:]
     cols = np.column_stack(free + law)
-    if y.size < cols.shape[1] + 2:
+    hi = np.repeat(tops, len(_WINDOW_STARTS))
+    lo = hi * np.tile(_WINDOW_STARTS, len(_WINDOW_TOPS))
+    inside = (lo_x[None, :] >= lo[:, None]) & (hi_x[None, :] <= hi[:, None]) & (lo_x[None, :] > 0)
+    enough = inside.sum(axis=1) >= cols.shape[1] + 2
+    if np.count_nonzero(enough) <= enough.size // 2:
         return None
-    A = cols * weight[:, None]
-    norm = np.linalg.norm(A, axis=0)
-    coef, *_ = np.linalg.lstsq(A / norm, y * weight, rcond=None)
-    coef = coef / norm
-    a = a_fixed if a_fixed is not None else float(coef[len(free)]) / hi ** powers[0]
-    b = float(coef[-1]) / hi ** powers[1]
-    if not a > 0:
+    inside, lo, hi = inside[enough], lo[enough], hi[enough]
+    w = np.where(inside, weight[None, :], 0.0)  # rows outside a window weigh nothing
+    A = cols[None, :, :] * w[:, :, None]
+    norm = np.linalg.norm(A, axis=1)
+    coef = (np.linalg.pinv(A / norm[:, None, :]) @ (y[None, :] * w)[:, :, None])[:, :, 0] / norm
+    a = np.full(coef.shape[0], a_fixed) if a_fixed is not None else coef[:, len(free)] / scale ** powers[0]
+    b = coef[:, -1] / scale ** powers[1]
+    good = a > 0
+    if np.count_nonzero(good) <= enough.size // 2:
         return None
+    order = np.flatnonzero(good)[np.argsort((b if a_fixed is not None else a)[good], kind="stable")]
+    k = int(order[order.size // 2])
+    a_k, b_k = float(a[k]), float(b[k])
     if low.kind == "density":
         # a density is kept from where its resolution term (c₀·ω in the count) is small
-        wc = min(max(math.sqrt(3.0 * abs(float(coef[0])) / (_ARTEFACT * a)), lo), hi)
+        wc = min(max(math.sqrt(3.0 * abs(float(coef[k, 0])) / (_ARTEFACT * a_k)), lo[k]), hi[k])
     else:
-        wc = hi  # counts scatter with the mesh's shells: the law replaces the whole window
-    if b < 0:
-        wc = min(wc, math.sqrt(0.5 * a / -b))  # keep a·θ² + b·θ⁴ ≥ a·θ²/2 below ω_c
-    return _BottomFit(a, b, wc)
-
-
-def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
-    """The median (in a, or in b when a is given) of the fits over several windows."""
-    fits = []
-    for q in _WINDOW_TOPS:
-        top = float(np.interp(3.0 * q, low.count, low.theta))
-        for r in _WINDOW_STARTS:
-            f = _window_fit(low, r * top, top, a_fixed)
-            if f is not None:
-                fits.append(f)
-    if len(fits) <= len(_WINDOW_TOPS) * len(_WINDOW_STARTS) // 2:
-        return None
-    fits.sort(key=(lambda f: f.b) if a_fixed is not None else (lambda f: f.a))
-    return fits[len(fits) // 2]
+        wc = float(hi[k])  # counts scatter with the mesh's shells: the law replaces the whole window
+    if b_k < 0:
+        wc = min(wc, math.sqrt(0.5 * a_k / -b_k))  # keep a·θ² + b·θ⁴ ≥ a·θ²/2 below ω_c
+    return _BottomFit(a_k, b_k, float(wc))
 
 
 def _first_points_cutoff(low: _LowEnd) -> float:
