@@ -678,7 +678,24 @@ _WINDOW_STARTS = (0.20, 0.25, 0.30, 0.35, 0.40)  # ... and start at these fracti
 _ARTEFACT = 0.03  # ω_c of a density: its fitted resolution term is below 3 % of the ω² law's mode count
 _EXPONENT = (2.4, 4.5)  # N(ω) ∝ ω^p with p in this range passes for an ω² bottom
 _MIN_POSITIVE = 4  # sample points holding modes needed to judge the bottom at all
-_LAW_NODES = np.polynomial.legendre.leggauss(8)  # the ω⁴ part of the law on [0, ω_c]
+_MAX_MODE_POINTS = 2048  # a list of modes is counted at about this many frequencies
+
+
+def _octave_nodes(octaves: int = 6) -> tuple[np.ndarray, np.ndarray]:
+    """Nodes t and weights of ∫₀¹ t⁴ dt by Gauss–Legendre on each octave [2^-(j+1), 2^-j].
+
+    Below the last octave lies 2^-(5·octaves) of the integral; the weights are scaled to
+    sum to 1/5 exactly, so the law's nodes carry exactly its modes.
+    """
+    t, w = _GAUSS
+    lo = 0.5 ** np.arange(1, octaves + 1)
+    half = 0.5 * lo  # each octave [lo, 2·lo] has half-width lo/2
+    nodes = (1.5 * lo)[:, None] + half[:, None] * t[None, :]
+    weights = (nodes**4 * half[:, None] * w[None, :]).ravel()
+    return nodes.ravel(), weights * (0.2 / weights.sum())
+
+
+_LAW_NODES = _octave_nodes()  # the ω⁴ part of the law on [0, ω_c], in units of ω_c
 
 
 @dataclass(frozen=True)
@@ -891,11 +908,13 @@ def _continued(nodes: np.ndarray, weights: np.ndarray, atoms: float, cont: _Cont
     branches = (DebyeBranch(wc, n2),) if n2 > 0 else ()
     theta, weight = nodes, weights * scale
     if n4 != 0.0:
-        # the ω⁴ part of the law: smooth, so Gauss–Legendre nodes on [0, ω_c] carry it
-        t, w = _LAW_NODES
-        law = 0.5 * wc * (t + 1.0)
+        # The ω⁴ part of the law: Gauss–Legendre nodes on the octaves [ω_c/2^(j+1), ω_c/2^j],
+        # so the quadrature follows the kernel down to T ≈ ω_c/100; below the last octave
+        # lie 2^-30 of its modes.
+        law, dens = _LAW_NODES
+        law, dens = law * wc, dens * (5.0 * n4)
         theta = np.concatenate((theta, law))
-        weight = np.concatenate((weight, n4 * 5.0 * law**4 / wc**5 * 0.5 * wc * w))
+        weight = np.concatenate((weight, dens))
     return ModeSet(theta, weight, branches=branches, atoms=atoms), scale
 
 
@@ -988,12 +1007,28 @@ def _extrapolated(theta, g, atoms, cutoff_k):
 
 
 def _mode_low_end(theta: np.ndarray, w: np.ndarray) -> _LowEnd:
-    """Counts of a list of modes: at each distinct frequency, the modes below plus half of its own."""
+    """Counts of a list of modes: at each distinct frequency, the modes below plus half of its own.
+
+    Only the lowest modes matter: about three times as many as the resolver looks at
+    (if the weights were equal) are taken by partition, not a full sort, unless they
+    hold less than twice what it looks at; the highest frequency taken is left out
+    (modes at that frequency may lie beyond the part).
+    """
+    needed = 3.0 * _WINDOW_TOPS[-1] / float(w.sum())  # the fraction of the weight looked at
+    k = max(4096, int(3.0 * needed * theta.size))
+    if k < theta.size:
+        part = np.argpartition(theta, k)[:k]
+        if float(w[part].sum()) >= 2.0 * needed * float(w.sum()):
+            theta, w = theta[part], w[part]
+            below = theta < theta.max()
+            theta, w = theta[below], w[below]
     uniq, inverse = np.unique(theta, return_inverse=True)
     own = np.bincount(inverse, weights=w)
     mid = np.cumsum(own) - 0.5 * own
     zero = float(own[0]) if uniq[0] == 0 else 0.0
-    pos = uniq > 0
+    pos = np.flatnonzero(uniq > 0)
+    # counts at every k-th distinct frequency are as exact, and enough for the fits
+    pos = pos[:: max(1, pos.size // _MAX_MODE_POINTS)]
     return _LowEnd(np.concatenate(([0.0], uniq[pos])), np.concatenate(([zero], mid[pos])), "modes")
 
 
