@@ -758,6 +758,8 @@ def _acoustic_doubt(low: _LowEnd) -> str | None:
     if pos[0] > 1 and x[pos[0] - 1] > 0:
         return f"no modes below {x[pos[0] - 1]:.4g} K (a gap, or an optical peak at the bottom)"
     top = float(np.interp(3.0 * _WINDOW_TOPS[-1], n, x))
+    if np.count_nonzero(x[pos] <= top) >= 4 and np.count_nonzero(x[pos] < 0.5 * top) == 0:
+        return f"no modes below {x[pos[0]]:.4g} K (a gap, or an optical peak at the bottom)"
     if np.count_nonzero(x[pos] < 0.5 * top) >= 4:
         upper = float(np.interp(top, x, n)) - n[0]
         lower = float(np.interp(0.5 * top, x, n)) - n[0]
@@ -830,8 +832,12 @@ def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
     if low.kind == "density":
         # a density is kept from where its resolution term (c₀·ω in the count) is small
         wc = min(max(math.sqrt(3.0 * abs(float(coef[k, 0])) / (_ARTEFACT * a_k)), lo[k]), hi[k])
+    elif low.kind == "bins":
+        # counts scatter with the mesh's shells: the law replaces the whole window, up to
+        # its last bin edge (whole bins stay above)
+        wc = float(x[np.searchsorted(x, hi[k], side="right") - 1])
     else:
-        wc = float(hi[k])  # counts scatter with the mesh's shells: the law replaces the whole window
+        wc = float(hi[k])  # between two modes, as the law's count there is
     if b_k < 0:
         wc = min(wc, math.sqrt(0.5 * a_k / -b_k))  # keep a·θ² + b·θ⁴ ≥ a·θ²/2 below ω_c
     return _BottomFit(a_k, b_k, float(wc))
