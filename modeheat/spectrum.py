@@ -767,28 +767,39 @@ class _Continuation:
 
 @dataclass(frozen=True)
 class _BottomFit:
+    """A fit of the law: g = a·θ² + b·θ⁴ (modes per K, normalised) below ω_c = `cutoff` in K."""
+
     a: float
     b: float
     cutoff: float
 
 
 def _acoustic_doubt(low: _LowEnd) -> str | None:
-    """Why the bottom of the data is not an ω² rise (None when it is, or when too coarse to tell)."""
+    """Why the bottom of the data is not an ω² rise (None when it is, or when too coarse to tell).
+
+    With enough points below the top of the fit range, the mode count's exponent between
+    half that top and the top decides; finely sampled data with no modes below half the
+    top have a gap; coarse data have one when at least two sample points above 0 come
+    before the first modes.
+    """
     x, n = low.theta, low.count
     pos = np.flatnonzero(n > n[0])
     if pos.size < _MIN_POSITIVE:
         return f"too few sampled modes ({pos.size} point(s) with modes) to judge the low-frequency end"
-    if pos[0] > 1 and x[pos[0] - 1] > 0:
-        return f"no modes below {x[pos[0] - 1]:.4g} K (a gap, or an optical peak at the bottom)"
+    gap = f"no modes below {x[pos[0] - 1] if pos[0] > 0 else x[pos[0]]:.4g} K (a gap, or an optical peak at the bottom)"
     top = float(np.interp(3.0 * _WINDOW_TOPS[-1], n, x))
-    if np.count_nonzero(x[pos] <= top) >= 4 and np.count_nonzero(x[pos] < 0.5 * top) == 0:
-        return f"no modes below {x[pos[0]]:.4g} K (a gap, or an optical peak at the bottom)"
-    if np.count_nonzero(x[pos] < 0.5 * top) >= 4:
+    lower_half = np.count_nonzero(x[pos] < 0.5 * top)
+    if lower_half >= 4:
         upper = float(np.interp(top, x, n)) - n[0]
         lower = float(np.interp(0.5 * top, x, n)) - n[0]
         p = math.log2(upper / lower) if lower > 0 else math.inf
         if not _EXPONENT[0] <= p <= _EXPONENT[1]:
             return f"the mode count below {top:.4g} K grows as ω^{p:.2g}, not as ω³ (a gap or no acoustic branch)"
+        return None
+    if lower_half == 0 and np.count_nonzero(x[pos] <= top) >= 4:
+        return gap
+    if pos[0] > 2 and x[pos[0] - 2] > 0:
+        return gap
     return None
 
 

@@ -35,6 +35,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from scipy import constants
 
 import fcc_reference
 import lowt_inputs
@@ -183,6 +184,21 @@ def test_a_gapped_spectrum_is_not_a_debye_branch():
     modes = 5.0 + np.linspace(-0.99, 0.99, 2000)
     with pytest.warns(SpectrumWarning):
         assert Spectrum.from_modes(modes, unit="THz").low_t_method == "off"
+
+
+def test_an_empty_first_bin_is_not_a_gap():
+    # invented test shape: a histogram of an ω² law up to 8 THz whose first bin is empty
+    # (as a mesh without its Γ modes gives); 10⁻³ THz³ per bin: exact counts
+    edges = np.linspace(0.0, 10.0, 401)
+    counts = np.diff(np.minimum(edges, 8.0) ** 3)
+    counts[0] = 0.0
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", SpectrumWarning)
+        sp = Spectrum.from_histogram(edges, counts, unit="THz")
+    assert sp.low_t_method == "auto"
+    # published: a Debye spectrum of 3 modes up to ν_D has θ_D = hν_D/k (h, k: CODATA
+    # via scipy.constants)
+    assert sp.moment_debye_temperature(-3) == pytest.approx(constants.h * 8e12 / constants.k, rel=1e-9)
 
 
 def test_a_linear_bottom_is_not_turned_into_an_omega_squared_one():
