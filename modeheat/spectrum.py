@@ -808,8 +808,9 @@ def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
 
     Each window [r·top, top] (top where the data hold a fraction q of 3 modes, for every
     q in _WINDOW_TOPS and r in _WINDOW_STARTS) gets a least-squares fit of the law plus
-    the resolution term of `low.kind`, with relative residuals (weights 1/t² on counts ∝
-    t³, 2/(t_a + t_b) on mean densities ∝ t², t = θ/top).  The result is the fit with the
+    the resolution term of `low.kind`, with weights t^(−3/2) on counts (∝ t³) and on mean
+    densities (∝ t²), t = θ/top (mid-interval for a density); measured on fcc q-mesh DOS,
+    these weigh the scattered lowest shells better than 1/t or 1/t².  The result is the fit with the
     median a (median b when a is given), over the windows with enough points; there must
     be more such windows than not.  All windows are solved as one batch.
     """
@@ -828,7 +829,9 @@ def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
         y = np.diff(n) / (dt * scale)
         law = [(tb**3 - ta**3) / (3.0 * dt), (tb**5 - ta**5) / (5.0 * dt)]
         with np.errstate(divide="ignore"):
-            weight = 2.0 / (ta + tb)
+            # relative residuals (g ∝ t²), with the scatter of a mesh DOS taken to fall as
+            # t^(−1/2) as more of the mesh's shells overlap
+            weight = (0.5 * (ta + tb)) ** -1.5
         powers = (2, 4)
         free = [np.ones(y.size)]
     else:
@@ -837,7 +840,7 @@ def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
         y = n - (low.count[0] if low.kind == "modes" else 0.0)
         law = [t**3 / 3.0, t**5 / 5.0]
         with np.errstate(divide="ignore"):
-            weight = 1.0 / t**2
+            weight = t**-1.5  # as for a density: between absolute and relative residuals
         powers = (3, 5)
         free = [np.ones(y.size)] if low.kind == "bins" else []
     if a_fixed is not None:
@@ -852,9 +855,18 @@ def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
         return None
     inside, lo, hi = inside[enough], lo[enough], hi[enough]
     w = np.where(inside, weight[None, :], 0.0)  # rows outside a window weigh nothing
-    A = cols[None, :, :] * w[:, :, None]
-    norm = np.linalg.norm(A, axis=1)
-    coef = (np.linalg.pinv(A / norm[:, None, :]) @ (y[None, :] * w)[:, :, None])[:, :, 0] / norm
+    coef = _batched_lstsq(cols, y, w)
+    if low.kind == "bins":
+        # The constant stands for what the first bins hold beyond the law (Γ's zero
+        # modes) or lack (empty first bins of a mesh without Γ): no more, either way,
+        # than the first non-empty bin's count.  Beyond that it would only soak up the
+        # scatter of the shells; such windows are fitted again with it held at the bound.
+        first = float(low.count[np.flatnonzero(low.count > 0)[0]])
+        held = np.clip(coef[:, 0], -first, first)
+        out = held != coef[:, 0]
+        if out.any():
+            again = _batched_lstsq(cols[:, 1:], y[None, :] - held[out, None], w[out])
+            coef[out] = np.column_stack([held[out], again])
     a = np.full(coef.shape[0], a_fixed) if a_fixed is not None else coef[:, len(free)] / scale ** powers[0]
     b = coef[:, -1] / scale ** powers[1]
     good = a > 0
@@ -875,6 +887,15 @@ def _fit_bottom(low: _LowEnd, a_fixed: float | None) -> _BottomFit | None:
     if b_k < 0:
         wc = min(wc, math.sqrt(0.5 * a_k / -b_k))  # keep a·θ² + b·θ⁴ ≥ a·θ²/2 below ω_c
     return _BottomFit(a_k, b_k, float(wc))
+
+
+def _batched_lstsq(cols: np.ndarray, y: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """Weighted least squares of y (rows, or windows × rows) on the columns `cols` (rows ×
+    p), one fit per row of the weights `w` (windows × rows); returns windows × p."""
+    A = cols[None, :, :] * w[:, :, None]
+    norm = np.linalg.norm(A, axis=1)  # equilibrated columns
+    rhs = np.broadcast_to(y, w.shape) * w
+    return (np.linalg.pinv(A / norm[:, None, :]) @ rhs[:, :, None])[:, :, 0] / norm
 
 
 def _first_points_cutoff(low: _LowEnd) -> float:

@@ -12,15 +12,18 @@ Measured errors of C_v at T = θ_D(0)/100, /50, /20 (python tests/benchmarks/low
 =============  ======  ==========================  ============================
 input          mesh    default                     θ_D(0) given
 =============  ======  ==========================  ============================
-tetrahedron    16³     +1.2 / +1.6 / +0.3 %        +0.2 / +0.6 / +0.0 %
-tetrahedron    32³     −0.7 / −0.5 / −0.3 %        +0.1 / +0.2 / −0.1 %
-tetrahedron    48³     −1.2 / −1.1 / −0.4 %        +0.1 / +0.0 / −0.2 %
-histogram      16³     −1.5 / +2.0 / +4.8 %        +0.2 / +0.7 / +3.1 %
-histogram      32³     +4.8 / +3.0 / −0.5 %        −0.0 / −0.2 / −0.5 %
-histogram      48³     −0.1 / +0.0 / +0.0 %        +0.1 / +0.1 / −0.0 %
-smeared        16³     +12.0 / +10.8 / +4.9 %      +0.3 / +1.1 / +1.9 %
-smeared        32³     −1.2 / −0.5 / +0.5 %        +0.1 / +0.7 / +0.8 %
-smeared        48³     −0.9 / −0.6 / +0.1 %        +0.1 / +0.2 / +0.3 %
+tetrahedron    16³     −0.4 / +0.0 / +0.1 %        +0.2 / +0.6 / +0.5 %
+tetrahedron    32³     −0.4 / −0.3 / −0.3 %        +0.1 / +0.2 / −0.1 %
+tetrahedron    48³     −1.3 / −1.2 / −0.4 %        +0.1 / −0.0 / −0.2 %
+histogram      16³     +2.7 / +2.5 / +3.1 %        +0.1 / +0.5 / +2.8 %
+histogram      32³     +2.8 / +2.1 / +0.1 %        −0.0 / −0.2 / −0.4 %
+histogram      48³     −0.0 / +0.2 / −0.1 %        +0.1 / +0.1 / −0.0 %
+smeared        16³     +7.6 / +6.3 / +3.6 %        +0.4 / +1.5 / +2.4 %
+smeared        32³     +0.0 / +0.6 / +0.8 %        +0.1 / +0.3 / +0.6 %
+smeared        48³     −1.5 / −1.2 / −0.1 %        +0.1 / +0.2 / +0.3 %
+mode list      16³     −5.5 / −8.2 / −6.7 %        −0.3 / −1.1 / −2.6 %
+mode list      32³     −0.8 / −0.5 / −0.3 %        +0.0 / −0.0 / −0.3 %
+mode list      48³     −0.3 / −0.2 / −0.2 %        +0.0 / +0.0 / +0.1 %
 =============  ======  ==========================  ============================
 """
 
@@ -94,7 +97,7 @@ def test_tetrahedron_dos_meets_the_targets_by_default(n):
     assert sp.low_t_method == "auto"
     # reference: the 96³ direct zone sum; targets of the issue (measured in the docstring)
     assert np.all(_errors(sp) <= DEFAULT_TARGET[n]), _errors(sp)
-    # reference: the elastic θ_D(0) (T → 0); measured −0.3 / +0.3 / +0.4 %
+    # reference: the elastic θ_D(0) (T → 0); measured +0.2 / +0.2 / +0.4 %
     assert sp.moment_debye_temperature(-3) == pytest.approx(THETA, rel=0.005)
 
 
@@ -109,20 +112,27 @@ def test_with_the_elastic_debye_temperature_every_input_meets_the_targets(kind, 
     assert sp.moment_debye_temperature(-3) == pytest.approx(THETA, rel=1e-12)
 
 
-@pytest.mark.parametrize("kind", ["histogram", "smeared", "modes"])
-def test_histogram_smeared_and_mode_inputs_converge_by_default(kind):
-    errors = {n: _errors(_spectrum(kind, n)) for n in (16, 32, 48)}
-    # reference: the 96³ direct zone sum.  At 32³ and 48³ the issue's targets hold,
-    # but for the histogram at 32³, θ_D(0)/50, measured 3.01 % against 3 %: its counts
-    # scatter with the mesh's shells, which a fit over a few shells cannot average out.
+@pytest.mark.parametrize("kind", ["histogram", "smeared"])
+@pytest.mark.parametrize("n", [16, 32, 48])
+def test_histogram_and_smeared_inputs_meet_the_targets_by_default(kind, n):
+    sp = _spectrum(kind, n)
+    assert sp.low_t_method == "auto"
+    # reference: the 96³ direct zone sum; the tetrahedron targets of the issue, which asks
+    # the same convergence of these inputs (measured in the docstring)
+    assert np.all(_errors(sp) <= DEFAULT_TARGET[n]), _errors(sp)
+    # reference: the elastic θ_D(0), within the target at θ_D(0)/100 (C_v ∝ θ⁻³ there:
+    # a third of it); measured at most 2.3 % (16³), 1.0 % (32³), 0.5 % (48³)
+    assert sp.moment_debye_temperature(-3) == pytest.approx(THETA, rel=DEFAULT_TARGET[n][0] / 3)
+
+
+def test_mode_lists_converge_by_default():
+    errors = {n: _errors(_spectrum("modes", n)) for n in (16, 32, 48)}
+    # reference: the 96³ direct zone sum.  From 32³ the issue's targets hold.  At 16³ only
+    # three distinct shells of the mesh lie below 1.25 THz, and the law fitted to them
+    # misses C_v at θ_D(0)/20 by 6.7 % (measured −5.5 / −8.2 / −6.7 %): held to 12 / 10 / 7 %.
     assert np.all(errors[48] <= DEFAULT_TARGET[48]), errors[48]
-    assert np.all(errors[32] <= np.array(DEFAULT_TARGET[32]) + [0.0, 0.001, 0.0]), errors[32]
-    # At 16³ only three shells of the mesh lie below the fit window: measured up to
-    # 12.0 / 10.8 / 4.9 % (smeared) and 5.0 / 7.9 / 6.7 % (mode list), so 16³ is held to
-    # 13 / 11 / 7 % here, and to converging: every 48³ error below its 16³ one's bound.
-    assert np.all(errors[16] <= (0.13, 0.11, 0.07)), errors[16]
-    # reference: the elastic θ_D(0), within the T → 0 share of the 48³ target
-    assert _spectrum(kind, 48).moment_debye_temperature(-3) == pytest.approx(THETA, rel=0.005)
+    assert np.all(errors[32] <= DEFAULT_TARGET[32]), errors[32]
+    assert np.all(errors[16] <= (0.12, 0.10, 0.07)), errors[16]
 
 
 def test_the_default_beats_the_old_continuation_at_every_mesh():
