@@ -22,10 +22,11 @@ down to ω = 0.  One resolver, shared by all three constructors, handles the bot
   branch, with a :class:`~modeheat.SpectrumWarning`, and the data are used as with
   ``"off"``.  Otherwise it fits g = a·ω² + b·ω⁴ plus a resolution term — a constant
   density for an interpolated or smeared DOS (what the unresolved bottom spreads
-  upwards, to first order), a constant count for bins (Γ's zero modes) and none for a
-  list of modes (its count at ω = 0 is known) — by least squares with relative
-  residuals, over 25 windows [r·top, top]: top where the data hold 0.8–2.5 % of three
-  modes, r = 0.2–0.4.  The window fit with the median a is kept.  Below the cut-off
+  upwards, to first order), a constant count for bins (Γ's zero modes or empty first
+  bins, at most the first non-empty bin's count) and none for a list of modes (its
+  count at ω = 0 is known) — by weighted least squares (weights t^(−3/2), t = ω/top),
+  over 25 windows [r·top, top]: top where the data hold 0.8–2.5 % of three modes,
+  r = 0.2–0.4.  The window fit with the median a is kept.  Below the cut-off
   ω_c the data are replaced by a·ω² + b·ω⁴ (a Debye branch and nodes for the ω⁴ part);
   ω_c is where the fitted resolution term of a density falls below 3 % of the law's
   mode count (within the window), and the top of the window for counts, which scatter
@@ -893,9 +894,14 @@ def _batched_lstsq(cols: np.ndarray, y: np.ndarray, w: np.ndarray) -> np.ndarray
     """Weighted least squares of y (rows, or windows × rows) on the columns `cols` (rows ×
     p), one fit per row of the weights `w` (windows × rows); returns windows × p."""
     A = cols[None, :, :] * w[:, :, None]
-    norm = np.linalg.norm(A, axis=1)  # equilibrated columns
-    rhs = np.broadcast_to(y, w.shape) * w
-    return (np.linalg.pinv(A / norm[:, None, :]) @ rhs[:, :, None])[:, :, 0] / norm
+    A /= (norm := np.linalg.norm(A, axis=1))[:, None, :]  # equilibrated columns
+    At = A.transpose(0, 2, 1)
+    rhs = (np.broadcast_to(y, w.shape) * w)[:, :, None]
+    # normal equations, and one step of refinement on the residual for full accuracy
+    gram = At @ A
+    coef = np.linalg.solve(gram, At @ rhs)
+    coef += np.linalg.solve(gram, At @ (rhs - A @ coef))
+    return coef[:, :, 0] / norm
 
 
 def _first_points_cutoff(low: _LowEnd) -> float:
@@ -904,7 +910,7 @@ def _first_points_cutoff(low: _LowEnd) -> float:
     return float(low.theta[min(j + 3, low.theta.size - 1)])
 
 
-def _resolve(low: _LowEnd, atoms: float, low_t, cutoff_k: float | None, who: str) -> _Continuation:
+def _resolve(low: _LowEnd, atoms: float, low_t: str | float, cutoff_k: float | None, who: str) -> _Continuation:
     """The low-temperature continuation of one spectrum (rules in the module docstring)."""
     given = not isinstance(low_t, str)
     doubt = _acoustic_doubt(low)
@@ -935,7 +941,9 @@ def _resolve(low: _LowEnd, atoms: float, low_t, cutoff_k: float | None, who: str
     return _Continuation("auto", wc, fit.a, b, theta=(9.0 * atoms / fit.a) ** (1.0 / 3.0))
 
 
-def _continued(nodes: np.ndarray, weights: np.ndarray, atoms: float, cont: _Continuation, who: str):
+def _continued(
+    nodes: np.ndarray, weights: np.ndarray, atoms: float, cont: _Continuation, who: str
+) -> tuple[ModeSet, float]:
     """ModeSet of the data above ω_c plus the law below it; returns (ModeSet, scale of the data).
 
     `weights` are normalised so that all of the data hold 3·atoms modes.  With θ_D(0)
@@ -979,7 +987,7 @@ def _continued(nodes: np.ndarray, weights: np.ndarray, atoms: float, cont: _Cont
     return ModeSet(theta, weight, branches=branches, atoms=atoms), scale
 
 
-def _cutoff_kelvin(cutoff, unit: str, lo: float, hi: float, where: str) -> float | None:
+def _cutoff_kelvin(cutoff: float | None, unit: str, lo: float, hi: float, where: str) -> float | None:
     """A given cut-off in K, checked to lie in (lo, hi) K."""
     if cutoff is None:
         return None
@@ -989,7 +997,9 @@ def _cutoff_kelvin(cutoff, unit: str, lo: float, hi: float, where: str) -> float
     return wc
 
 
-def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
+def _sampled_modeset(
+    theta: np.ndarray, g: np.ndarray, atoms: float, low_t: str | float, cutoff: float | None, unit: str, who: str
+) -> tuple[ModeSet, float, _Continuation]:
     """Nodes of a sampled density and its continuation.
 
     Returns (ModeSet, scale from the given density to the normalised one, _Continuation).
@@ -1014,7 +1024,7 @@ def _sampled_modeset(theta, g, atoms, low_t, cutoff, unit, who):
     return ms, scale * norm, cont
 
 
-def _sampled_as_is(theta, g, atoms):
+def _sampled_as_is(theta: np.ndarray, g: np.ndarray, atoms: float) -> tuple[ModeSet, float]:
     """ModeSet of a sampled density read linearly in g, without continuation; and its scale."""
     ratio_form = np.zeros(theta.size - 1, dtype=bool)
     nodes_all, w_all = _interval_nodes(theta, g, 0.0, ratio_form)
@@ -1035,7 +1045,7 @@ _EXTRAPOLATE_FRACTION = 0.02  # the fit window holds the lowest 2 % of the modes
 _EXTRAPOLATE_AGREE = 0.05  # data above ω_c follow the fitted g/ω² within 5 %
 
 
-def _extrapolated(theta, g, atoms, cutoff_k):
+def _extrapolated(theta: np.ndarray, g: np.ndarray, atoms: float, cutoff_k: float | None) -> _Continuation:
     """low_t="extrapolate": the ω² coefficient extrapolated from the resolved low-frequency part.
 
     g = a·ω² + b·ω⁴ is fitted by least squares in g over the lowest 2 % of the modes, so
@@ -1093,7 +1103,9 @@ def _mode_low_end(theta: np.ndarray, w: np.ndarray) -> _LowEnd:
     return _LowEnd(np.concatenate(([0.0], uniq[pos])), np.concatenate(([zero], mid[pos])), "modes")
 
 
-def _modes_modeset(theta, w, atoms, low_t, cutoff, unit, who):
+def _modes_modeset(
+    theta: np.ndarray, w: np.ndarray, atoms: float, low_t: str | float, cutoff: float | None, unit: str, who: str
+) -> tuple[ModeSet, _Continuation]:
     """ModeSet of individual (normalised) modes with the continuation; returns (ModeSet, _Continuation)."""
     cutoff_k = _cutoff_kelvin(cutoff, unit, 0.0, math.inf, "(0, ∞)")
     cont = _resolve(_mode_low_end(theta, w), atoms, low_t, cutoff_k, who)
@@ -1125,7 +1137,9 @@ def _bin_nodes(edges: np.ndarray, counts: np.ndarray, lo: float):
     return nodes.ravel(), (dens[:, None] * half[:, None] * w[None, :]).ravel()
 
 
-def _histogram_modeset(theta, counts, atoms, low_t, cutoff, unit, who):
+def _histogram_modeset(
+    theta: np.ndarray, counts: np.ndarray, atoms: float, low_t: str | float, cutoff: float | None, unit: str, who: str
+) -> tuple[ModeSet, _Continuation]:
     """ModeSet of normalised bin counts with the continuation; returns (ModeSet, _Continuation)."""
     cutoff_k = _cutoff_kelvin(cutoff, unit, theta[0], theta[-1], "the histogram")
     low = _LowEnd(theta, np.concatenate(([0.0], np.cumsum(counts))), "bins")
