@@ -10,6 +10,7 @@ programs would write it, for the model of :mod:`fcc_reference` on a Γ-centred n
   the highest mode), a bin width tied to the mesh: about half the frequency spacing of
   the mesh's lowest shells, 1.5n² modes per bin on average, and the three zero modes at
   Γ in the first bin.
+* :func:`mesh_modes` — every mode of the mesh, for :meth:`modeheat.Spectrum.from_modes`.
 * :func:`smeared` — every mode of the mesh as a Gaussian of σ = ν_max/n, about the
   frequency spacing of the mesh's lowest shells (the usual tie of the width to the mesh,
   so that the smeared shells merge), sampled on a grid of step σ/4 from 0; the
@@ -27,7 +28,7 @@ import numpy as np
 
 import fcc_reference
 
-__all__ = ["tetrahedron", "histogram", "smeared", "model"]
+__all__ = ["tetrahedron", "histogram", "smeared", "mesh_modes", "model"]
 
 
 def model():
@@ -47,14 +48,15 @@ def tetrahedron(n: int) -> tuple[np.ndarray, np.ndarray]:
 
 
 @lru_cache(maxsize=None)
-def _modes(n: int) -> np.ndarray:
+def mesh_modes(n: int) -> np.ndarray:
+    """ν in THz of every mode of the n³ mesh (Γ's three zero modes included)."""
     return fcc_reference.mesh_frequencies(n).ravel()
 
 
 @lru_cache(maxsize=None)
 def histogram(n: int) -> tuple[np.ndarray, np.ndarray]:
     """(edges, counts) of the n³ mesh's modes in bins of width ν_max/(2n) from 0."""
-    nu = _modes(n)
+    nu = mesh_modes(n)
     top = float(nu.max())
     width = top / (2 * n)
     bins = int(np.ceil(top / width * (1 + 1e-12)))
@@ -66,7 +68,7 @@ def histogram(n: int) -> tuple[np.ndarray, np.ndarray]:
 @lru_cache(maxsize=None)
 def smeared(n: int) -> tuple[np.ndarray, np.ndarray]:
     """(ν, g) of the n³ mesh's modes smeared by Gaussians of σ = ν_max/n."""
-    nu = np.sort(_modes(n))
+    nu = np.sort(mesh_modes(n))
     top = float(nu[-1])
     sigma = top / (2 * n)
     grid = np.arange(0.0, top + 6 * sigma, sigma / 4)

@@ -63,7 +63,7 @@ def _spectrum(kind: str, n: int, **kw) -> Spectrum:
         return Spectrum(*lowt_inputs.smeared(n), unit="THz", **kw)
     if kind == "histogram":
         return Spectrum.from_histogram(*lowt_inputs.histogram(n), unit="THz", **kw)
-    return Spectrum.from_modes(lowt_inputs._modes(n), unit="THz", **kw)
+    return Spectrum.from_modes(lowt_inputs.mesh_modes(n), unit="THz", **kw)
 
 
 def _errors(sp: Spectrum) -> np.ndarray:
@@ -238,6 +238,20 @@ def test_a_debye_spectrum_is_continued_exactly_by_every_constructor():
 
 
 # --- what the tables say ------------------------------------------------------------------------------
+def test_the_command_line_default_is_auto_and_its_file_says_so(tmp_path, capsys):
+    from modeheat.cli import main
+
+    out = tmp_path / "q.csv"
+    demo = Path(__file__).resolve().parent.parent / "demo_spectra" / "quellium_dos.txt"
+    assert main(["table", str(demo), "--temperatures", "1,10", "-o", str(out)]) == 0
+    capsys.readouterr()
+    text = out.read_text(encoding="utf-8")
+    assert "# low-temperature continuation: auto (ω² law fitted above the unresolved bottom" in text
+    # reference: the same spectrum built in Python with the documented default
+    expected = thermo(read_spectrum(demo), [1.0, 10.0])
+    np.testing.assert_allclose(pd.read_csv(out, comment="#").to_numpy(), expected.to_numpy(), rtol=1e-11)
+
+
 def test_tables_files_and_repr_say_which_continuation_was_applied(tmp_path):
     sp = _spectrum("tetrahedron", 16)
     table = thermo(sp, [1.0, 10.0])

@@ -45,7 +45,7 @@ def spectrum(kind: str, n: int, low_t) -> Spectrum:
     if kind == "smeared":
         f, g = lowt_inputs.smeared(n)
         return Spectrum(f, g, unit="THz", **kw)
-    return Spectrum.from_modes(lowt_inputs._modes(n), unit="THz", **kw)
+    return Spectrum.from_modes(lowt_inputs.mesh_modes(n), unit="THz", **kw)
 
 
 def errors(kind: str, n: int, low_t) -> tuple[np.ndarray, Spectrum]:
