@@ -11,11 +11,11 @@ programs would write it, for the model of :mod:`fcc_reference` on a Γ-centred n
   the mesh's lowest shells, 1.5n² modes per bin on average, and the three zero modes at
   Γ in the first bin.
 * :func:`mesh_modes` — every mode of the mesh, for :meth:`modeheat.Spectrum.from_modes`.
-* :func:`smeared` — every mode of the mesh as a Gaussian of σ = ν_max/n, about the
-  frequency spacing of the mesh's lowest shells (the usual tie of the width to the mesh,
-  so that the smeared shells merge), sampled on a grid of step σ/4 from 0; the
-  Gaussians' parts below 0 are cut off (what a grid from 0 keeps), and the three zero
-  modes at Γ are smeared like the others.
+* :func:`smeared` — every mode of the mesh as a Gaussian of σ = ν_max/(2n), about half
+  the frequency spacing of the mesh's lowest shells (a width tied to the mesh, as for the
+  histogram's bins; the smeared shells still show as bumps), sampled on a grid of step
+  σ/4 from 0; the Gaussians' parts below 0 are cut off (what a grid from 0 keeps), and
+  the three zero modes at Γ are smeared like the others.
 
 Frequencies in THz; densities in modes per THz per atom (histogram: counts per bin).
 """
@@ -67,7 +67,7 @@ def histogram(n: int) -> tuple[np.ndarray, np.ndarray]:
 
 @lru_cache(maxsize=None)
 def smeared(n: int) -> tuple[np.ndarray, np.ndarray]:
-    """(ν, g) of the n³ mesh's modes smeared by Gaussians of σ = ν_max/n."""
+    """(ν, g) of the n³ mesh's modes smeared by Gaussians of σ = ν_max/(2n)."""
     nu = np.sort(mesh_modes(n))
     top = float(nu[-1])
     sigma = top / (2 * n)
