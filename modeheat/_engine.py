@@ -13,9 +13,10 @@ is a polynomial of degree < SPREAD over the stencil; the correlation is one FFT 
 kernel, and values at the requested temperatures come from ``GATHER``-point
 Lagrange interpolation in ln T.  The spreading is cached per ModeSet.  Small
 problems, temperatures so low that every node is frozen out (θ_min/T > ``FROZEN``), and
-temperatures where the node sum is so small that the FFT's absolute rounding error
-would show (C/R below ``NOISE_FLOOR`` of the node modes) are summed directly over the
-nodes that matter, which keeps the relative accuracy of exponentially small values.
+temperatures where the heat capacity (nodes and branches) is so small that the FFT's
+absolute rounding error would show (C/R below ``NOISE_FLOOR`` of the node modes) are
+summed directly over the nodes that matter, which keeps the relative accuracy of
+exponentially small values.
 """
 
 from __future__ import annotations
@@ -220,10 +221,12 @@ class ModeSet:
         hot = T > 0
         Th = T[hot]
         if Th.size:
-            c1, e1, f1 = self._nodes(Th)
+            bc, be, bf = np.zeros_like(Th), np.zeros_like(Th), np.zeros_like(Th)
             for branch in self.branches:
                 dc, de, df = branch.terms(Th)
-                c1, e1, f1 = c1 + dc, e1 + de, f1 + df
+                bc, be, bf = bc + dc, be + de, bf + df
+            c1, e1, f1 = self._nodes(Th, bc)
+            c1, e1, f1 = c1 + bc, e1 + be, f1 + bf
             cv[hot], e[hot], f[hot] = c1, e1, f1
             s[hot] = e1 - f1
         u0 = self.zero_point()
@@ -244,7 +247,9 @@ class ModeSet:
         return {k: v.reshape(shape) for k, v in out.items()}
 
     # --- node sums -----------------------------------------------------------------
-    def _nodes(self, T: np.ndarray):
+    def _nodes(self, T: np.ndarray, branch_cv: np.ndarray):
+        """Node sums at T; `branch_cv` is the branches' C/R there, part of what the FFT's
+        rounding error is measured against."""
         n = self.theta.size
         zeros = np.zeros_like(T)
         if n == 0:
@@ -258,8 +263,10 @@ class ModeSet:
         if np.any(warm):
             cv[warm], e[warm], f[warm] = self._correlate(T[warm])
             # The FFT's rounding error is absolute (~1e-16 of the whole sum); where the
-            # node sum is tiny it would dominate, so those temperatures are summed directly.
-            frozen |= warm & (cv < NOISE_FLOOR * float(np.sum(self.weight)))
+            # heat capacity (nodes and branches) is tiny it would show, so those
+            # temperatures are summed directly.  Where a branch (the ω² continuation)
+            # carries the heat capacity, the node sum's rounding is negligible beside it.
+            frozen |= warm & (cv + branch_cv < NOISE_FLOOR * float(np.sum(self.weight)))
         if np.any(frozen):
             # Nodes more than ~50 kT above the lowest one contribute < e^(−50) per mode.
             keep = self.theta < tmin + 50.0 * float(T[frozen].max())

@@ -103,13 +103,15 @@ def _temperature(text: str, spec: str) -> float:
 
 # --- argument types ------------------------------------------------------------------------
 def _low_t_arg(text: str) -> str | float:
-    if text in ("fit", "extrapolate", "off"):
+    from .spectrum import LOW_T_CHOICES
+
+    if text in LOW_T_CHOICES:
         return text
     try:
         value = float(text)
     except ValueError:
         raise argparse.ArgumentTypeError(
-            f"expected 'fit', 'extrapolate', 'off' or a Debye temperature in K, not {text!r}"
+            f"expected {', '.join(repr(c) for c in LOW_T_CHOICES)} or a Debye temperature in K, not {text!r}"
         ) from None
     if not (math.isfinite(value) and value > 0):
         raise argparse.ArgumentTypeError(f"a Debye temperature must be positive, not {text!r}")
@@ -280,19 +282,21 @@ def build_parser() -> argparse.ArgumentParser:
     table.add_argument(
         "--low-t",
         type=_low_t_arg,
-        default="fit",
-        metavar="fit|extrapolate|off|THETA",
-        help="low-temperature continuation below what the grid resolves: 'fit' (default, an ω² "
-        "branch with the spectrum's own lowest mode count), 'extrapolate' (a·ω² from a fit of "
-        "aω²+bω⁴ to the lowest 2%% of the modes, for q-mesh spectra that undercount their "
-        "lowest shells), 'off', or a Debye temperature θ_D(0) in K (e.g. from elastic constants)",
+        default="auto",
+        metavar="auto|fit|extrapolate|off|THETA",
+        help="low-temperature continuation below what the data resolve: 'auto' (default: an ω² "
+        "law fitted to the resolved part above the unresolved bottom of a q-mesh DOS, none for a "
+        "gapped spectrum), 'fit' (an ω² branch with the spectrum's own lowest mode count), "
+        "'extrapolate' (a·ω² from a fit of aω²+bω⁴ to the lowest 2%% of the modes), 'off', or a "
+        "Debye temperature θ_D(0) in K (e.g. from elastic constants; the cut-off then chosen as "
+        "for 'auto')",
     )
     table.add_argument(
         "--low-t-cutoff",
         type=_positive_float,
         metavar="FREQ",
-        help="cut-off frequency of that continuation, in the files' unit (default: the third "
-        "sampled point above the first non-zero density)",
+        help="cut-off frequency of that continuation, in the files' unit (default: chosen above "
+        "the unresolved bottom of the data; a pure ω² law below a cut-off given here)",
     )
     table.add_argument(
         "--jobs",
@@ -343,7 +347,7 @@ class _Job:
     total: str | None
     per: str
     temperatures: np.ndarray
-    low_t: str | float = "fit"
+    low_t: str | float = "auto"
     low_t_cutoff: float | None = None
     molar_mass: float | None = None
 
@@ -560,9 +564,29 @@ def _table(args: argparse.Namespace) -> int:
             + "\n"
         )
     sys.stdout.flush()
+    for outcome in good:
+        _say("note", _source_note(outcome.frame.attrs, outcome.path if len(files) > 1 else None))
     _say("note", _basis(frame))
     _say("caution", CAUTION)
     return status
+
+
+_ATOMS_FROM = {
+    "given": "given",
+    "file": "from the file's '# atoms:' line",
+    "integral": "from the DOS integral, 3 modes per atom",
+}
+
+
+def _source_note(attrs: dict, path: str | None) -> str:
+    """Where a source's atom count came from and its low-temperature continuation, in words."""
+    atoms = attrs["atoms"]
+    text = f"{atoms:g} atom{'' if atoms == 1 else 's'} per formula unit"
+    if attrs.get("atoms_source") in _ATOMS_FROM:
+        text += f" ({_ATOMS_FROM[attrs['atoms_source']]})"
+    if attrs.get("low_t_summary"):
+        text += f"; low-temperature continuation: {attrs['low_t_summary']}"
+    return text if path is None else f"{path}: {text}"
 
 
 def _count(n: int, noun: str) -> str:
@@ -634,7 +658,9 @@ def _combine(outcomes: list[_Outcome]) -> pd.DataFrame:
 
 def _format(frame: pd.DataFrame) -> str:
     units = frame.attrs.get("units", {})
-    shown = frame.rename(columns={c: f"{c} [{units[c]}]" for c in frame.columns if c in units})
+    # The terminal shows the numbers; per-source metadata go to the notes (and the CSV).
+    keep = [c for c in frame.columns if c in ("source", "atoms") or c in units and c != "zero_point_energy"]
+    shown = frame[keep].rename(columns={c: f"{c} [{units[c]}]" for c in frame.columns if c in units})
     formatters = {}
     if "source" in shown.columns:
         width = int(shown["source"].str.len().max())

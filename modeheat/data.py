@@ -169,7 +169,7 @@ def read_spectrum(
     columns: Sequence[str | int] | None = None,
     total: str | None = None,
     name: str | None = None,
-    low_t: str | float = "fit",
+    low_t: str | float = "auto",
     low_t_cutoff: float | None = None,
 ) -> Spectrum:
     """Read a density of states from a text file of columns.
@@ -647,8 +647,9 @@ def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool
     """Write a thermodynamic table as CSV with a commented header.
 
     The file starts with ``#`` lines giving the caution, the basis (per mole of formula
-    units or of atoms), the unit of each column and, where the table says, its source
-    and zero-point energy; then the column names and the rows.  The text goes to a
+    units or of atoms), the unit of each column and, where the table says, its source,
+    the low-temperature continuation applied (method and cut-off) and the zero-point
+    energy; then the column names and the rows.  The text goes to a
     temporary file in the same folder that is renamed into place, so an interrupted
     write leaves any earlier file intact.
 
@@ -762,6 +763,8 @@ def _table_text(frame: pd.DataFrame) -> str:
     ]
     if attrs.get("source"):
         lines.append(f"source: {attrs['source']}")
+    if attrs.get("low_t_summary"):
+        lines.append(f"low-temperature continuation: {attrs['low_t_summary']}")
     zpe = attrs.get("zero_point_energy")
     if isinstance(zpe, (int, float)) and not isinstance(zpe, bool):
         unit_u = units.get("U", "J/mol")

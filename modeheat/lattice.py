@@ -262,7 +262,7 @@ class DensityOfStates:
             self.name,
         )
 
-    def spectrum(self, *, low_t: str | float = "fit", low_t_cutoff: float | None = None) -> Spectrum:
+    def spectrum(self, *, low_t: str | float = "auto", low_t_cutoff: float | None = None) -> Spectrum:
         """This density of states as a :class:`~modeheat.Spectrum` (continuation as there)."""
         return Spectrum(
             self.frequency,
@@ -1188,7 +1188,7 @@ def iter_dos(
     step: float | None = None,
     points: int = _POINTS,
     unit: str = "THz",
-    low_t: str | float = "fit",
+    low_t: str | float = "auto",
     name: str | None = None,
     batch: int = _K_BATCH,
 ) -> Iterator[Progress]:
@@ -1201,7 +1201,7 @@ def iter_dos(
     step : float, optional — frequency step in `unit`
     points : int — grid points when `step` is not given
     unit : str — frequency unit of the Spectrum
-    low_t : "fit", "off" or float — the Spectrum's low-temperature continuation
+    low_t : "auto", "fit", "extrapolate", "off" or float — the Spectrum's low-temperature continuation
     name : str, optional — defaults to the model's name
     batch : int — k-points per diagonalisation batch
 
@@ -1236,7 +1236,7 @@ def dos(
     step: float | None = None,
     points: int = _POINTS,
     unit: str = "THz",
-    low_t: str | float = "fit",
+    low_t: str | float = "auto",
     name: str | None = None,
 ) -> Spectrum:
     """The model's linear-tetrahedron DOS as a :class:`~modeheat.Spectrum`: :func:`iter_dos` run to the end."""

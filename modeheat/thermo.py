@@ -164,7 +164,11 @@ def thermo(source, temperatures, *, per: str = "formula", molar_mass: float | No
         Columns ``T`` [K], ``Cv`` [J/(mol K)], ``S`` [J/(mol K)], ``U`` [J/mol],
         ``F`` [J/mol] (both with zero point; per gram: J/(g K), J/g) and ``theta_D`` [K], the effective Debye
         temperature of the lattice (vibrational) C_v.  ``attrs`` holds the units, the
-        basis, the source's name, the zero-point energy and the caution.
+        basis, the source's name, the zero-point energy and the caution; for a
+        :class:`~modeheat.Spectrum` also its low-temperature continuation: ``low_t_method``
+        (:attr:`~modeheat.Spectrum.low_t_method`), ``low_t_cutoff`` with
+        ``low_t_cutoff_unit`` and ``low_t_summary`` (:attr:`~modeheat.Spectrum.low_t_summary`),
+        and ``atoms_source``, where its atom count came from (:attr:`~modeheat.Spectrum.atoms_source`).
 
     Raises
     ------
@@ -202,6 +206,17 @@ def thermo(source, temperatures, *, per: str = "formula", molar_mass: float | No
         zero_point_energy=k * ms.zero_point(),
         caution=CAUTION,
     )
+    method = getattr(source, "low_t_method", None)
+    if method is not None:
+        frame.attrs.update(
+            low_t_method=method,
+            low_t_cutoff=source.low_t_cutoff,
+            low_t_cutoff_unit=source.unit,
+            low_t_summary=source.low_t_summary,
+        )
+    atoms_source = getattr(source, "atoms_source", None)
+    if atoms_source is not None:
+        frame.attrs["atoms_source"] = atoms_source
     return frame
 
 

@@ -213,7 +213,11 @@ def test_several_files_in_parallel_make_one_tidy_table(tmp_path, capsys, monkeyp
     assert captured.out == f"wrote 4 rows from 2 of 2 files to {out}\n"
     # Each source's metadata read back with pandas alone: one column per per-source value.
     table = pd.read_csv(out, comment="#")
-    assert list(table.columns) == ["source", "atoms", *COLUMNS, "zero_point_energy"]
+    per_source = ["zero_point_energy", "low_t_method", "low_t_cutoff", "low_t_cutoff_unit", "low_t_summary", "atoms_source"]
+    assert list(table.columns) == ["source", "atoms", *COLUMNS, *per_source]
+    assert set(table["atoms_source"]) == {"given"}
+    for path, rows in table.groupby("source", sort=False):
+        assert set(rows["low_t_method"]) == {read_spectrum(path, atoms=2).low_t_method}
     assert list(table["source"]) == [str(GOOD)] * 2 + [str(second)] * 2
     assert list(table["atoms"]) == [2.0] * 4  # --atoms applies to every file
     text = out.read_text(encoding="utf-8")
@@ -235,14 +239,14 @@ def test_several_files_on_the_terminal(tmp_path, capsys):
 
 
 def test_per_source_metadata_is_carried_over_generically(tmp_path, capsys, monkeypatch):
-    """Whatever scalar a table's attrs hold per source (e.g. a low-temperature method)
-    becomes a column of the combined table; table-wide entries do not."""
+    """Whatever scalar a table's attrs hold per source (here two invented ones) becomes a
+    column of the combined table; table-wide entries do not."""
     real = thermo_module.thermo
 
     def with_extra(source, temperatures, **kw):
         frame = real(source, temperatures, **kw)
-        frame.attrs.update(low_t_method=source.name[:4], low_t_cutoff=0.5, not_a_scalar=[1, 2])
-        frame.attrs["units"] = {**frame.attrs["units"], "low_t_cutoff": "THz"}
+        frame.attrs.update(mesh_label=source.name[:4], smearing=0.5, not_a_scalar=[1, 2])
+        frame.attrs["units"] = {**frame.attrs["units"], "smearing": "THz"}
         return frame
 
     monkeypatch.setattr(thermo_module, "thermo", with_extra)
@@ -251,9 +255,10 @@ def test_per_source_metadata_is_carried_over_generically(tmp_path, capsys, monke
     assert main(["table", str(GOOD), str(second), "--temperatures", "300", "--jobs", "1", "-o", str(out), *ONE]) == 0
     capsys.readouterr()
     table = pd.read_csv(out, comment="#")
-    assert list(table.columns) == ["source", "atoms", *COLUMNS, "zero_point_energy", "low_t_method", "low_t_cutoff"]
-    assert list(table["low_t_method"]) == ["deby", "seco"]
-    assert "low_t_cutoff [THz]" in out.read_text(encoding="utf-8")
+    assert list(table.columns)[: len(COLUMNS) + 3] == ["source", "atoms", *COLUMNS, "zero_point_energy"]
+    assert list(table.columns)[-2:] == ["mesh_label", "smearing"] and "not_a_scalar" not in table.columns
+    assert list(table["mesh_label"]) == ["deby", "seco"]
+    assert "smearing [THz]" in out.read_text(encoding="utf-8")
 
 
 def test_progress_only_on_a_terminal(capsys, monkeypatch):

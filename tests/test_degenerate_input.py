@@ -75,7 +75,9 @@ def test_densities_differing_only_by_scale_give_one_spectrum():
     ref = mh.thermo(mh.Spectrum(f, g, atoms=1), T)["Cv"].to_numpy()
     for factor in (1e-300, 1e300):
         out = mh.thermo(mh.Spectrum(f, g * factor, atoms=1), T)["Cv"].to_numpy()
-        np.testing.assert_allclose(out, ref, rtol=1e-14)  # only rounding: the scaling is exact
+        # Only rounding: normalising by a power of two is exact, but g·1e±300 carries one
+        # rounding per value, which the continuation's least-squares fit amplifies (≈4e-14 seen).
+        np.testing.assert_allclose(out, ref, rtol=1e-12)
 
 
 def test_modes_with_weight_only_at_zero_frequency():
