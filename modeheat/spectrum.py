@@ -1225,6 +1225,10 @@ def _sampled_modeset(
     th, gg = (theta, g) if theta[0] == 0 else (np.concatenate(([0.0], theta)), np.concatenate(([0.0], g)))
     ratio_form = np.ones(th.size - 1, dtype=bool)
     nodes_all, w_all = _interval_nodes(th, gg, 0.0, ratio_form)
+    if not w_all.sum() > 0:
+        # Only a density at ω = 0 (allowed with low_t="off" alone): read linearly, it is a
+        # flat and a linear low-dimensional branch, and there is no ω² bottom to estimate.
+        return (*_sampled_as_is(theta, g, atoms), _Continuation("off", theta=0.0))
     norm = 3.0 * atoms / float(w_all.sum())
     per_interval = w_all.reshape(-1, _GAUSS[0].size).sum(axis=1) * norm
     low = _LowEnd(th, np.concatenate(([0.0], np.cumsum(per_interval))), "density")

@@ -196,3 +196,14 @@ def test_wrong_arguments_raise_input_error(call):
     with pytest.raises(InputError) as info:
         call()
     assert isinstance(info.value, ValueError) and isinstance(info.value, ModeheatError)
+
+
+def test_density_only_at_zero_read_as_it_is():
+    """'0 1 / 1 0' with low_t='off' crashed (ZeroDivisionError); read linearly it is a
+    density falling from ω = 0, a flat plus a linear low-dimensional branch (invented)."""
+    sp = mh.Spectrum([0.0, 1.0], [1.0, 0.0], atoms=1, low_t="off")
+    table = mh.thermo(sp, [0.0, 2000.0])
+    # common practice: Dulong–Petit, 3R per mole of atoms far above every mode (1 THz ≈ 48 K)
+    assert table["Cv"].iloc[1] == pytest.approx(3 * mh.units.R, rel=1e-4)
+    # a density finite at ω = 0 gives C ∝ T, so no finite Debye temperature as T → 0
+    assert table["theta_D"].iloc[0] == 0.0 and sp.moment_debye_temperature(-3) == 0.0
