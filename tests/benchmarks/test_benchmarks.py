@@ -46,3 +46,13 @@ def test_startup_benchmark_prints_ratio(capsys):
     out = capsys.readouterr().out
     print(out)
     assert "target" in out and result["ratio"] > 0
+
+
+def test_views_benchmark_prints_times(capsys):
+    from bench_views import main
+
+    times = main()
+    out = capsys.readouterr().out
+    print(out)
+    # common practice: the mixture's 15 modes (3 per vibrational component); speed is reported, not asserted
+    assert "target" in out and times["points"] == 2000 and abs(times["modes"] - 15.0) < 1e-9
