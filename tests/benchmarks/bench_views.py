@@ -57,7 +57,7 @@ def main() -> dict[str, float]:
         f"    heat_capacity alone                  {t_cv * ms:7.3f} ms\n"
         f"    thermo (C, S, U, F, θ_D)             {t_thermo * ms:7.3f} ms\n"
         f"    Mixture.spectrum() ({changed().spectrum().frequency.size} points)      {t_render * ms:7.3f} ms\n"
-        f"    θ_D(T) share: temperature_curves − heat_capacity = {(t_curves - t_cv) * ms:.3f} ms"
+        f"    beyond C (θ_D(T), S, U, F, the table): temperature_curves − heat_capacity = {(t_curves - t_cv) * ms:.3f} ms"
     )
     return {
         "curves_s": t_curves,
