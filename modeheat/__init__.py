@@ -110,8 +110,8 @@ _HOMES: dict[str, tuple[str, ...]] = {
     ),
 }
 _LAZY = {name: module for module, names in _HOMES.items() for name in names}
-# Submodules reachable as attributes (``modeheat.special``); only lattice is public API.
-_SUBMODULES = ("data", "errors", "fitting", "lattice", "models", "special", "spectrum", "units")
+# Submodules reachable as attributes (``modeheat.engine``); only lattice is public API.
+_SUBMODULES = ("data", "engine", "errors", "fitting", "lattice", "models", "spectrum", "units")
 
 
 def __getattr__(name: str) -> object:

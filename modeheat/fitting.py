@@ -33,7 +33,7 @@ import pandas as pd
 from scipy import optimize
 from scipy.special import chdtri, gammaln
 
-from ._engine import ModeSet
+from .engine.modeset import ModeSet
 from .errors import InputError, ModeheatWarning
 from .models import Component, Dilatation, Electronic, Mixture
 from .thermo import CAUTION, atoms_of_data, effective_debye_temperature, heat_capacity, thermo

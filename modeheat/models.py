@@ -33,8 +33,8 @@ from typing import ClassVar, Iterable, Mapping
 import numpy as np
 from scipy import integrate
 
-from . import special
-from ._engine import DebyeBranch, ModeSet, _kernels
+from .engine import special
+from .engine.modeset import DebyeBranch, ModeSet, _kernels
 from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
 from .units import R, check_kelvin, check_unit, kelvin_per

@@ -64,7 +64,7 @@ from typing import Mapping
 import numpy as np
 from scipy import constants as _c
 
-from ._engine import DebyeBranch, ModeSet
+from .engine.modeset import DebyeBranch, ModeSet
 from .errors import AtomCountWarning, InputError, SpectrumWarning
 from .units import ATOMS_RANGE, KELVIN_RANGE, check_kelvin, check_unit, kelvin_per
 

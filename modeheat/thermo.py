@@ -15,8 +15,8 @@ import warnings
 import numpy as np
 import pandas as pd
 
-from . import special
-from ._engine import ModeSet
+from .engine import special
+from .engine.modeset import ModeSet
 from .errors import InputError, ModeheatError, NoDebyeTemperatureWarning
 from .units import ATOMS_RANGE, KELVIN_RANGE, R
 
@@ -313,7 +313,7 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float | None = None)
     """Effective Debye temperature θ_D(T) in K from a heat capacity.
 
     Solves C_v = 3·atoms·R·D(θ/T) at each temperature, where D is the Debye heat
-    capacity per mode (:func:`modeheat.special.debye_cv`).  Where no θ exists —
+    capacity per mode (:func:`modeheat.engine.special.debye_cv`).  Where no θ exists —
     C ≤ 0, or C ≥ 3·atoms·R — the result is NaN and one warning says why.
 
     Parameters
