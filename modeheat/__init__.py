@@ -65,15 +65,8 @@ __all__ = [
 
 # The module each lazily imported public name lives in.
 _HOMES: dict[str, tuple[str, ...]] = {
-    "data": (
-        "HeatCapacityWarning",
-        "cp_from_cv",
-        "cv_from_cp",
-        "nernst_lindemann_coefficient",
-        "read_heat_capacity",
-        "read_spectrum",
-        "write_table",
-    ),
+    "cp_cv": ("cp_from_cv", "cv_from_cp", "nernst_lindemann_coefficient"),
+    "io": ("HeatCapacityWarning", "read_heat_capacity", "read_spectrum", "write_table"),
     "fitting": (
         "DebyeBreakdown",
         "FitQuality",
@@ -111,7 +104,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
 }
 _LAZY = {name: module for module, names in _HOMES.items() for name in names}
 # Submodules reachable as attributes (``modeheat.engine``); only lattice is public API.
-_SUBMODULES = ("data", "engine", "errors", "fitting", "lattice", "models", "spectrum", "units")
+_SUBMODULES = ("engine", "errors", "fitting", "io", "lattice", "models", "spectrum", "units")
 
 
 def __getattr__(name: str) -> object:

@@ -2,7 +2,7 @@
 
 Data are DataFrames with columns ``T`` [K], ``C`` [J/(mol K) per mole of formula
 units] and optionally ``sigma`` (the standard uncertainty of C, same unit), as
-:func:`modeheat.data.read_heat_capacity` returns them.
+:func:`modeheat.read_heat_capacity` returns them.
 
 - :func:`low_temperature_fit` — linear least squares of C/T = γ + βT² (+ δT⁴), the
   Sommerfeld coefficient γ and θ_D(0) from β;

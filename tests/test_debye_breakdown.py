@@ -20,7 +20,7 @@ from scipy.optimize import brentq
 
 from modeheat import CAUTION, Debye, Einstein, Electronic, heat_capacity, solid
 from modeheat.engine import special
-from modeheat.data import cp_from_cv
+from modeheat import cp_from_cv
 from modeheat.errors import InputError
 from modeheat.fitting import debye_breakdown, low_temperature_fit
 from modeheat.units import R
