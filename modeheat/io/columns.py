@@ -322,7 +322,6 @@ def _select(columns, names: list[str], header: _Header | None, path) -> list[int
     return chosen
 
 
-
 def _positive_argument(label: str, value, path) -> float:
     try:
         v = float(value)
