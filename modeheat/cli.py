@@ -320,16 +320,11 @@ class _VersionAction(argparse.Action):
 
 
 def version() -> str:
-    """The installed version of modeheat, or the source tree's ``__version__`` when it is
-    not installed."""
-    from importlib import metadata
+    """The installed version of modeheat, or the source tree's when it is not installed
+    (the one rule of ``modeheat.__version__``, asked afresh)."""
+    from . import _version
 
-    try:
-        return metadata.version("modeheat")
-    except metadata.PackageNotFoundError:
-        from . import __version__
-
-        return __version__
+    return _version()
 
 
 def _check_table_args(args: argparse.Namespace) -> None:
