@@ -1,5 +1,4 @@
-"""The measured points every fit and analysis reads: data sets, windows, uncertainties.
-"""
+"""The measured points every fit and analysis reads: data sets, windows, uncertainties."""
 
 from __future__ import annotations
 

@@ -1,5 +1,4 @@
-"""Where the Debye model breaks down: the T³ range and the plateau of θ_D(T).
-"""
+"""Where the Debye model breaks down: the T³ range and the plateau of θ_D(T)."""
 
 from __future__ import annotations
 

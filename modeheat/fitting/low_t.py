@@ -1,5 +1,4 @@
-"""Low-temperature analysis: C/T = γ + βT² (+ δT⁴) by linear least squares.
-"""
+"""Low-temperature analysis: C/T = γ + βT² (+ δT⁴) by linear least squares."""
 
 from __future__ import annotations
 

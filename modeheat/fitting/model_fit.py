@@ -1,5 +1,4 @@
-"""Non-linear least-squares fits of model components and mixtures to C_p(T), with standard errors.
-"""
+"""Non-linear least-squares fits of model components and mixtures to C_p(T), with standard errors."""
 
 from __future__ import annotations
 

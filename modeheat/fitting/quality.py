@@ -1,5 +1,4 @@
-"""Goodness of a model fit: χ²_red against its band, a runs test on the residual signs, a verdict.
-"""
+"""Goodness of a model fit: χ²_red against its band, a runs test on the residual signs, a verdict."""
 
 from __future__ import annotations
 

@@ -1,5 +1,4 @@
-"""What every lattice module shares: units, validation helpers and the result types.
-"""
+"""What every lattice module shares: units, validation helpers and the result types."""
 
 from __future__ import annotations
 

@@ -1,5 +1,4 @@
-"""1-D chains with nearest-neighbour springs, solved analytically and on a k-mesh.
-"""
+"""1-D chains with nearest-neighbour springs, solved analytically and on a k-mesh."""
 
 from __future__ import annotations
 

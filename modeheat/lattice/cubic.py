@@ -1,5 +1,4 @@
-"""Cubic spring models (monatomic sc, bcc, fcc; rock salt): structures and dynamical matrices.
-"""
+"""Cubic spring models (monatomic sc, bcc, fcc; rock salt): structures and dynamical matrices."""
 
 from __future__ import annotations
 

@@ -1,5 +1,4 @@
-"""Sound velocities, elastic constants and the Debye temperature of the spring models.
-"""
+"""Sound velocities, elastic constants and the Debye temperature of the spring models."""
 
 from __future__ import annotations
 

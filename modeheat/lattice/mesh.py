@@ -1,5 +1,4 @@
-"""q-meshes, the linear tetrahedron DOS and dispersions along paths of the spring models.
-"""
+"""q-meshes, the linear tetrahedron DOS and dispersions along paths of the spring models."""
 
 from __future__ import annotations
 
