@@ -3,7 +3,12 @@
 The public names are imported on first use (module ``__getattr__``, PEP 562): ``import
 modeheat`` loads only the errors, and pandas, scipy.optimize, the fitting and the
 lattice modules load when something first needs them, so the ``modeheat`` command and
-scripts that use a part of the package start quickly.
+scripts that use a part of the package start quickly.  ``__version__`` is looked up in
+the package metadata on first use too (importlib.metadata alone costs tens of ms).
+
+The subpackages follow the architecture: ``engine`` (mode sets, per-mode kernels) under
+``spectrum`` and ``models``, ``thermo`` and ``cp_cv`` on those, ``io`` (files),
+``fitting`` and ``lattice`` on top; the names users need are re-exported here.
 """
 
 from __future__ import annotations
@@ -14,76 +19,64 @@ import types
 
 from .errors import AtomCountWarning, InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
 
-__version__ = "0.1.0"
-
+# The public API, by what a user does with it.
 __all__ = [
-    "AtomCountWarning",
-    "DebyeBreakdown",
+    # sources: a spectrum, model components and their mixtures
+    "Spectrum",
+    "ReducedDensity",
+    "debye_temperature_from_sound",
+    "Component",
+    "Mixture",
+    "solid",
+    "Debye",
+    "SineChain",
+    "Einstein",
+    "Band",
+    "Electronic",
+    "Schottky",
     "Dilatation",
-    "FitQuality",
-    "FitResult",
-    "FitWarning",
-    "HeatCapacityWarning",
-    "LowTemperatureFit",
+    "ModeCountWarning",
+    # thermodynamics of any source
+    "thermo",
+    "heat_capacity",
+    "entropy",
+    "internal_energy",
+    "free_energy",
+    "zero_point_energy",
+    "effective_debye_temperature",
+    "CAUTION",
+    # C_p <-> C_v
     "cp_from_cv",
     "cv_from_cp",
-    "debye_breakdown",
-    "fit",
-    "low_temperature_fit",
     "nernst_lindemann_coefficient",
-    "read_heat_capacity",
-    "Band",
-    "Component",
-    "Debye",
-    "Einstein",
-    "Electronic",
-    "Mixture",
-    "ModeCountWarning",
-    "Schottky",
-    "SineChain",
-    "solid",
-    "lattice",
-    "CAUTION",
-    "InputError",
-    "ModeheatError",
-    "ModeheatWarning",
-    "NoDebyeTemperatureWarning",
-    "SpectrumWarning",
-    "ReducedDensity",
-    "Spectrum",
-    "debye_temperature_from_sound",
-    "effective_debye_temperature",
-    "entropy",
-    "free_energy",
-    "heat_capacity",
-    "internal_energy",
-    "thermo",
+    # files
     "read_spectrum",
+    "read_heat_capacity",
+    "HeatCapacityWarning",
     "write_table",
-    "zero_point_energy",
+    # measured heat capacities: fits and analyses
+    "low_temperature_fit",
+    "LowTemperatureFit",
+    "fit",
+    "FitResult",
+    "FitQuality",
+    "FitWarning",
+    "debye_breakdown",
+    "DebyeBreakdown",
+    # spring-model lattices (a subpackage)
+    "lattice",
+    # errors and warnings
+    "ModeheatError",
+    "InputError",
+    "ModeheatWarning",
+    "SpectrumWarning",
+    "AtomCountWarning",
+    "NoDebyeTemperatureWarning",
 ]
 
 # The module each lazily imported public name lives in.
 _HOMES: dict[str, tuple[str, ...]] = {
-    "data": (
-        "HeatCapacityWarning",
-        "cp_from_cv",
-        "cv_from_cp",
-        "nernst_lindemann_coefficient",
-        "read_heat_capacity",
-        "read_spectrum",
-        "write_table",
-    ),
-    "fitting": (
-        "DebyeBreakdown",
-        "FitQuality",
-        "FitResult",
-        "FitWarning",
-        "LowTemperatureFit",
-        "debye_breakdown",
-        "fit",
-        "low_temperature_fit",
-    ),
+    "spectrum": ("ReducedDensity", "Spectrum", "debye_temperature_from_sound"),
     "models": (
         "Band",
         "Component",
@@ -97,7 +90,6 @@ _HOMES: dict[str, tuple[str, ...]] = {
         "SineChain",
         "solid",
     ),
-    "spectrum": ("ReducedDensity", "Spectrum", "debye_temperature_from_sound"),
     "thermo": (
         "CAUTION",
         "effective_debye_temperature",
@@ -108,14 +100,46 @@ _HOMES: dict[str, tuple[str, ...]] = {
         "thermo",
         "zero_point_energy",
     ),
+    "cp_cv": ("cp_from_cv", "cv_from_cp", "nernst_lindemann_coefficient"),
+    "io": ("HeatCapacityWarning", "read_heat_capacity", "read_spectrum", "write_table"),
+    "fitting": (
+        "DebyeBreakdown",
+        "FitQuality",
+        "FitResult",
+        "FitWarning",
+        "LowTemperatureFit",
+        "debye_breakdown",
+        "fit",
+        "low_temperature_fit",
+    ),
 }
 _LAZY = {name: module for module, names in _HOMES.items() for name in names}
-# Submodules reachable as attributes (``modeheat.special``); only lattice is public API.
-_SUBMODULES = ("data", "errors", "fitting", "lattice", "models", "special", "spectrum", "units")
+# Submodules and subpackages reachable as attributes (``modeheat.io``); only lattice is in __all__.
+_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "io", "lattice", "models", "spectrum", "units")
+
+
+def _version() -> str:
+    """The installed distribution's version; in an uninstalled source tree, the one its
+    pyproject.toml states (``0+unknown`` when neither exists)."""
+    from importlib import metadata
+
+    try:
+        return metadata.version("modeheat")
+    except metadata.PackageNotFoundError:
+        import re
+        from pathlib import Path
+
+        pyproject = Path(__file__).resolve().parent.parent / "pyproject.toml"
+        if not pyproject.is_file():
+            return "0+unknown"
+        found = re.search(r'^version\s*=\s*"([^"]+)"', pyproject.read_text(encoding="utf-8"), re.M)
+        return found.group(1) if found else "0+unknown"
 
 
 def __getattr__(name: str) -> object:
-    if name in _LAZY:
+    if name == "__version__":
+        value: object = _version()
+    elif name in _LAZY:
         value = getattr(importlib.import_module(f".{_LAZY[name]}", __name__), name)
     elif name in _SUBMODULES:
         value = importlib.import_module(f".{name}", __name__)

@@ -1,10 +1,10 @@
 """The ``modeheat`` command.
 
-``modeheat table FILE...`` reads spectrum files (format: :mod:`modeheat.data`) and
+``modeheat table FILE...`` reads spectrum files (format: :mod:`modeheat.io`) and
 prints the thermodynamic table of each: C_v, S, U, F and the effective Debye
 temperature against T.  Each file has its own atom count (``--atoms`` sets one for
 all).  Several files make one table with ``source`` and ``atoms`` columns and the
-other per-file values (:mod:`modeheat.data`, "Table files"), computed in parallel
+other per-file values (:mod:`modeheat.io`, "Table files"), computed in parallel
 worker processes.
 
 A batch keeps what worked: every file that gives a table is written, and each file
@@ -181,7 +181,7 @@ spectrum files:
 
 atoms per formula unit:
   Without --atoms each file has its own count, read from the file (see the
-  file format: python -c "import modeheat.data; help(modeheat.data)") or, when
+  file format: python -c "import modeheat.io; help(modeheat.io)") or, when
   the file gives none, taken from its density of states when that integrates
   to within 1 % of 3 modes per atom; a file where neither works fails, with
   its own error line.  --atoms N applies to every file of the batch.
@@ -320,16 +320,11 @@ class _VersionAction(argparse.Action):
 
 
 def version() -> str:
-    """The installed version of modeheat, or the source tree's ``__version__`` when it is
-    not installed."""
-    from importlib import metadata
+    """The installed version of modeheat, or the source tree's when it is not installed
+    (the one rule of ``modeheat.__version__``, asked afresh)."""
+    from . import _version
 
-    try:
-        return metadata.version("modeheat")
-    except metadata.PackageNotFoundError:
-        from . import __version__
-
-        return __version__
+    return _version()
 
 
 def _check_table_args(args: argparse.Namespace) -> None:
@@ -365,7 +360,7 @@ def _compute(job: _Job) -> _Outcome:
     outcome's error, so one file cannot cost the others their results."""
     import numpy as np
 
-    from .data import read_spectrum
+    from .io.spectrum_files import read_spectrum
     from .thermo import thermo
 
     outcome = _Outcome(job.path)
@@ -527,7 +522,7 @@ def _table(args: argparse.Namespace) -> int:
     files: list[str] = args.files
     if args.output is not None:
         _check_output(args.output, files, args.overwrite)
-    from .data import write_table
+    from .io.tables import write_table
     from .thermo import CAUTION
 
     jobs = [
@@ -596,7 +591,7 @@ def _count(n: int, noun: str) -> str:
 def _check_output(output: str, files: list[str], overwrite: bool) -> None:
     """Refuse before any work an output that cannot be written, is not a regular file,
     would replace an input or, without --overwrite, would replace any file."""
-    from .data import check_table_destination
+    from .io.tables import check_table_destination
 
     check_table_destination(output)
     folder = os.path.dirname(output) or "."

@@ -33,8 +33,9 @@ from typing import ClassVar, Iterable, Mapping
 import numpy as np
 from scipy import integrate
 
-from . import special
-from ._engine import DebyeBranch, ModeSet, _kernels
+from .cp_cv import cp_from_cv
+from .engine import special
+from .engine.modeset import DebyeBranch, ModeSet, _kernels
 from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
 from .units import R, check_kelvin, check_unit, kelvin_per
@@ -789,8 +790,6 @@ class Dilatation(Component):
         C_p = 2·C_v/(1 + √(1 − 4·A·T·C_v)), the root of C_p − C_v = A·C_p²·T that goes
         to C_v as A → 0; an :class:`~modeheat.errors.InputError` where 4·A·T·C_v > 1.
         """
-        from .data import cp_from_cv  # data.py imports the spectrum and thermo modules
-
         return cp_from_cv(temperatures, cv, A=self.A)
 
 

@@ -15,8 +15,8 @@ import warnings
 import numpy as np
 import pandas as pd
 
-from . import special
-from ._engine import ModeSet
+from .engine import special
+from .engine.modeset import ModeSet
 from .errors import InputError, ModeheatError, NoDebyeTemperatureWarning
 from .units import ATOMS_RANGE, KELVIN_RANGE, R
 
@@ -263,7 +263,7 @@ def atoms_of_data(data, atoms: float | None = None) -> tuple[float, bool]:
     """Atoms per formula unit of heat-capacity data: the one rule of every function taking them.
 
     The count stored with the data is ``attrs["atoms"]`` (set by
-    :func:`~modeheat.data.read_heat_capacity`; a column of the frame carries it too).
+    :func:`~modeheat.read_heat_capacity`; a column of the frame carries it too).
     `atoms` None takes the stored count, or 1 when the data carry none; a given
     `atoms` must equal a stored count.
 
@@ -313,14 +313,14 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float | None = None)
     """Effective Debye temperature θ_D(T) in K from a heat capacity.
 
     Solves C_v = 3·atoms·R·D(θ/T) at each temperature, where D is the Debye heat
-    capacity per mode (:func:`modeheat.special.debye_cv`).  Where no θ exists —
+    capacity per mode (:func:`modeheat.engine.special.debye_cv`).  Where no θ exists —
     C ≤ 0, or C ≥ 3·atoms·R — the result is NaN and one warning says why.
 
     Parameters
     ----------
     temperatures : array_like — T in K, > 0
     cv : array_like — C_v in J/(mol K) per mole of formula units, one per temperature (a
-        column of a :func:`~modeheat.data.read_heat_capacity` frame carries its atom count)
+        column of a :func:`~modeheat.read_heat_capacity` frame carries its atom count)
     atoms : float, optional — atoms per formula unit; by default the count `cv`
         carries, else 1 (:func:`atoms_of_data`)
 

@@ -21,7 +21,7 @@ from corpus import DATA, cases
 
 import modeheat.cli as cli
 from modeheat.cli import main, parse_temperatures
-from modeheat.data import read_spectrum, write_table
+from modeheat import read_spectrum, write_table
 from modeheat.errors import InputError
 from modeheat.thermo import CAUTION, thermo
 

@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 from modeheat import Debye, Electronic, heat_capacity
-from modeheat.data import cp_from_cv, cv_from_cp, nernst_lindemann_coefficient
+from modeheat import cp_from_cv, cv_from_cp, nernst_lindemann_coefficient
 from modeheat.errors import InputError
 from modeheat.models import Dilatation, Mixture
 

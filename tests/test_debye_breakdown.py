@@ -1,7 +1,7 @@
 """Where the Debye model breaks down: the T³ law and a constant θ_D(T).
 
 Reference for the T³ limit: the closed-form Debye heat capacity per mode
-(modeheat.special.debye_cv, itself checked against 30-digit mpmath quadrature in
+(modeheat.engine.special.debye_cv, itself checked against 30-digit mpmath quadrature in
 tests/test_special.py), whose T → 0 limit is (4π⁴/5)(T/θ)³.  For a pure Debye solid
 C/T³ falls 1 % below its limit at T = θ/11.49 (measured), not at the θ/50 often quoted
 as a rule of thumb: that rule is about real solids, whose dispersion bends the DOS
@@ -18,8 +18,9 @@ import pandas as pd
 import pytest
 from scipy.optimize import brentq
 
-from modeheat import CAUTION, Debye, Einstein, Electronic, heat_capacity, solid, special
-from modeheat.data import cp_from_cv
+from modeheat import CAUTION, Debye, Einstein, Electronic, heat_capacity, solid
+from modeheat.engine import special
+from modeheat import cp_from_cv
 from modeheat.errors import InputError
 from modeheat.fitting import debye_breakdown, low_temperature_fit
 from modeheat.units import R

@@ -12,7 +12,7 @@ import pandas as pd
 import pytest
 
 import modeheat as mh
-from modeheat import special
+from modeheat.engine import special
 from modeheat.errors import InputError, ModeheatError, NoDebyeTemperatureWarning
 
 HEADER = "# frequency (THz) density\n"

@@ -15,7 +15,7 @@ import numpy as np
 import pytest
 
 from modeheat import thermo
-from modeheat.data import read_spectrum
+from modeheat import read_spectrum
 from modeheat.units import R
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_spectra"

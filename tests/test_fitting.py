@@ -32,9 +32,10 @@ from reference import janaf_table
 from scipy import stats
 
 from modeheat import CAUTION, Debye, Einstein, Electronic, Mixture, heat_capacity
-from modeheat.data import cp_from_cv, nernst_lindemann_coefficient
+from modeheat import cp_from_cv, nernst_lindemann_coefficient
 from modeheat.errors import InputError
-from modeheat.fitting import FitWarning, _runs_test, fit, low_temperature_fit
+from modeheat.fitting import FitWarning, fit, low_temperature_fit
+from modeheat.fitting.quality import _runs_test
 from modeheat.models import Dilatation
 from modeheat.units import R
 

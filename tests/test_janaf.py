@@ -33,7 +33,8 @@ from reference import janaf_row
 from scipy.constants import R
 from scipy.optimize import brentq
 
-from modeheat import NoDebyeTemperatureWarning, effective_debye_temperature, special
+from modeheat import NoDebyeTemperatureWarning, effective_debye_temperature
+from modeheat.engine import special
 
 # Handbook Debye temperatures in K (from memory).
 HANDBOOK_THETA = {"Al": 428.0, "Cu": 343.0}

@@ -42,9 +42,6 @@ from modeheat.lattice import (
     MonatomicChain,
     Progress,
     RockSalt,
-    _spread,
-    _tetra_coefficients,
-    _tetra_fraction,
     debye_coefficient,
     debye_temperature,
     dispersion,
@@ -56,6 +53,7 @@ from modeheat.lattice import (
     sound_velocities,
     tetrahedron_dos,
 )
+from modeheat.lattice._base import _spread, _tetra_coefficients, _tetra_fraction
 from modeheat.units import R, kelvin_per
 
 AMU = constants.atomic_mass

@@ -43,7 +43,7 @@ from scipy import constants
 import fcc_reference
 import lowt_inputs
 from modeheat import Spectrum, SpectrumWarning, heat_capacity, thermo
-from modeheat.data import read_spectrum, write_table
+from modeheat import read_spectrum, write_table
 from modeheat.units import R
 
 REF = fcc_reference.load_reference()

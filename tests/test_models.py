@@ -40,7 +40,7 @@ from modeheat import (
     thermo,
     zero_point_energy,
 )
-from modeheat.special import debye_cv, einstein_cv
+from modeheat.engine.special import debye_cv, einstein_cv
 
 R = constants.R
 mp.mp.dps = 30

@@ -10,7 +10,7 @@ import pytest
 from corpus import BAD_CP, CP_CASES, cases, check_manifest
 from scipy import constants
 
-from modeheat.data import HeatCapacityWarning, read_heat_capacity
+from modeheat import HeatCapacityWarning, read_heat_capacity
 from modeheat.errors import InputError
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_spectra"
@@ -202,7 +202,7 @@ def test_spectrum_reader_keeps_its_own_messages():
     # One tokeniser serves both readers; each says what its columns should be.
     from corpus import BAD
 
-    from modeheat.data import read_spectrum
+    from modeheat import read_spectrum
 
     with pytest.raises(InputError, match="expected the frequency followed by at least one density column"):
         read_spectrum(BAD / "one_column.txt")

@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 from corpus import BAD, CASES, DATA, cases, check_manifest
 
-from modeheat.data import read_spectrum
+from modeheat import read_spectrum
 from modeheat.errors import InputError, SpectrumWarning
 from modeheat.spectrum import Spectrum
 from modeheat.thermo import thermo

@@ -1,4 +1,4 @@
-"""Reference checks of the per-mode Einstein and Debye functions in modeheat.special.
+"""Reference checks of the per-mode Einstein and Debye functions in modeheat.engine.special.
 
 The main oracle is mpmath at 30 significant digits: adaptive quadrature of the
 defining integrals for the Debye functions, and the closed forms for the Einstein
@@ -21,7 +21,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy import constants
 
-from modeheat import special
+from modeheat.engine import special
 
 mp.mp.dps = 30
 

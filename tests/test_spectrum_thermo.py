@@ -1,7 +1,7 @@
 """Spectrum → thermodynamics, checked against analytic models and published laws.
 
 Oracles, each named beside its check:
-- the Debye model in closed form (modeheat.special, itself checked against mpmath in
+- the Debye model in closed form (modeheat.engine.special, itself checked against mpmath in
   test_special.py) and the Einstein model;
 - the low-temperature law C_v = (12π⁴/5)·N·k·(T/θ)³ ≈ 1943.77·(T/θ)³ J/(mol K)
   (Debye 1912; the number from scipy.constants.R);
@@ -38,7 +38,7 @@ from modeheat import (
     thermo,
     zero_point_energy,
 )
-from modeheat.special import debye_cv, debye_energy, debye_entropy, einstein_cv
+from modeheat.engine.special import debye_cv, debye_energy, debye_entropy, einstein_cv
 from modeheat.units import kelvin_per
 
 R = constants.R

@@ -17,7 +17,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from modeheat import Spectrum, effective_debye_temperature, thermo
-from modeheat.special import debye_cv
+from modeheat.engine.special import debye_cv
 from modeheat.units import R
 
 

@@ -26,7 +26,7 @@ import fcc_reference  # noqa: E402
 import lowt_inputs  # noqa: E402
 
 from modeheat import Spectrum, heat_capacity  # noqa: E402
-from modeheat.data import read_spectrum  # noqa: E402
+from modeheat import read_spectrum  # noqa: E402
 from modeheat.units import R  # noqa: E402
 
 MESHES = (16, 32, 48)

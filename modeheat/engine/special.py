@@ -29,7 +29,7 @@ from functools import lru_cache
 import numpy as np
 from scipy.special import bernoulli, zeta
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = [
     "einstein_cv",

@@ -1,0 +1,161 @@
+"""Writing thermodynamic tables as comma-separated values (format: :mod:`modeheat.io`)."""
+
+from __future__ import annotations
+
+import csv
+import os
+import secrets
+import stat
+from collections.abc import Mapping
+from pathlib import Path
+
+import pandas as pd
+
+from ..errors import InputError
+from ..thermo import CAUTION, basis_text
+
+__all__ = ["write_table", "check_table_destination"]
+
+
+# --- writing tables ------------------------------------------------------------------------
+def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
+    """Write a thermodynamic table as CSV with a commented header.
+
+    The file starts with ``#`` lines giving the caution, the basis (per mole of formula
+    units or of atoms), the unit of each column and, where the table says, its source,
+    the low-temperature continuation applied (method and cut-off) and the zero-point
+    energy; then the column names and the rows.  The text goes to a
+    temporary file in the same folder that is renamed into place, so an interrupted
+    write leaves any earlier file intact.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame — a table from :func:`modeheat.thermo` (``attrs`` must hold
+        ``units`` and ``per``)
+    path : str or os.PathLike — the CSV file to write
+    overwrite : bool — replace an existing regular file (by default that is an error)
+
+    Returns
+    -------
+    pathlib.Path
+        The file written.
+
+    Raises
+    ------
+    InputError
+        The file exists and `overwrite` is false, the path names a folder, a device, a
+        FIFO, a socket or a symbolic link (:func:`check_table_destination`), the folder
+        is missing or not writable, or the table carries no units or basis.
+    """
+    path = Path(path)
+    text = _table_text(frame)
+    check_table_destination(path)
+    if not overwrite and path.exists():
+        raise InputError("the file exists; choose another name or allow overwriting", path=path)
+    folder = path.parent
+    if not folder.is_dir():
+        raise InputError(f"the folder {str(folder)!r} does not exist", path=path)
+    temporary = folder / f".{path.name}.{secrets.token_hex(4)}.tmp"
+    try:
+        # os.open with mode 0o666 lets the umask give the file the permissions of any new file.
+        fd = os.open(temporary, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666)
+        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as handle:
+            handle.write(text)
+            handle.flush()
+            os.fsync(handle.fileno())
+        if overwrite:
+            os.replace(temporary, path)
+        else:
+            _place_new(temporary, path)
+    except FileExistsError:
+        raise InputError("the file exists; choose another name or allow overwriting", path=path) from None
+    except OSError as exc:
+        raise InputError(f"cannot write the file ({exc.strerror or exc})", path=path) from None
+    finally:
+        temporary.unlink(missing_ok=True)
+    return path
+
+
+def check_table_destination(path: str | os.PathLike) -> None:
+    """Refuse a table destination that is not, or would not become, a regular file.
+
+    Writing renames a new file into place, which would replace a folder's name, a
+    device such as ``/dev/null``, a FIFO, a socket or a symbolic link (not its target)
+    by a regular file: each is refused.  A missing or existing regular file passes.
+
+    Parameters
+    ----------
+    path : str or os.PathLike — the CSV file to be written
+
+    Raises
+    ------
+    InputError
+        The path names something other than a regular file; the message says what.
+    """
+    try:
+        mode = os.lstat(path).st_mode
+    except FileNotFoundError:
+        return
+    except OSError as exc:
+        raise InputError(f"cannot check the output file ({exc.strerror or exc})", path=path) from None
+    if stat.S_ISREG(mode):
+        return
+    if stat.S_ISDIR(mode):
+        raise InputError("is a folder, not a file", path=path)
+    if stat.S_ISLNK(mode):
+        raise InputError("is a symbolic link; name its target or another file", path=path)
+    raise InputError("is not a regular file (a device, FIFO or socket); choose a file name", path=path)
+
+
+def _place_new(temporary: Path, path: Path) -> None:
+    """Move `temporary` to `path` only if `path` does not exist (FileExistsError otherwise)."""
+    try:
+        # A hard link fails atomically if the name was taken meanwhile.
+        os.link(temporary, path)
+    except FileExistsError:
+        raise
+    except OSError:
+        # Some file systems have no hard links: fall back on check-then-rename.
+        if path.exists():
+            raise FileExistsError(path) from None
+        os.replace(temporary, path)
+
+
+def _table_text(frame: pd.DataFrame) -> str:
+    attrs = frame.attrs
+    units: Mapping[str, str] | None = attrs.get("units")
+    per = attrs.get("per")
+    if not units or per not in ("formula", "atom", "gram"):
+        raise InputError(
+            "the table carries no units or basis in frame.attrs ('units', 'per'); make it with modeheat.thermo"
+        )
+    basis = attrs.get("basis") or basis_text(per, attrs.get("atoms", 1), attrs.get("molar_mass"))
+    lines = [
+        "modeheat thermodynamic table",
+        f"caution: {CAUTION}",
+        f"basis: {basis}",
+        "units: " + "; ".join(f"{col} [{units[col]}]" for col in frame.columns if col in units),
+    ]
+    if attrs.get("source"):
+        lines.append(f"source: {attrs['source']}")
+    if attrs.get("low_t_summary"):
+        lines.append(f"low-temperature continuation: {attrs['low_t_summary']}")
+    zpe = attrs.get("zero_point_energy")
+    if isinstance(zpe, (int, float)) and not isinstance(zpe, bool):
+        unit_u = units.get("U", "J/mol")
+        lines.append(f"zero-point energy: {zpe:.12g} {unit_u}")
+    head = "".join("# " + " ".join(str(line).split()) + "\n" for line in lines)
+    # Quoted, a "#" in a text cell is not a comment to pandas.read_csv(comment="#").
+    hashed = any(
+        frame[col].astype(str).str.contains("#", regex=False).any()
+        for col in frame.columns
+        if not pd.api.types.is_numeric_dtype(frame[col])
+    )
+    body = frame.to_csv(
+        index=False,
+        float_format="%.12g",
+        na_rep="nan",
+        lineterminator="\n",
+        quoting=csv.QUOTE_NONNUMERIC if hashed else csv.QUOTE_MINIMAL,
+    )
+    return head + body
