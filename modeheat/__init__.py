@@ -63,8 +63,9 @@ __all__ = [
     "FitWarning",
     "debye_breakdown",
     "DebyeBreakdown",
-    # spring-model lattices (a subpackage)
+    # spring-model lattices (a subpackage); plot-ready curves for views and figures (a module)
     "lattice",
+    "representations",
     # errors and warnings
     "ModeheatError",
     "InputError",
@@ -114,8 +115,8 @@ _HOMES: dict[str, tuple[str, ...]] = {
     ),
 }
 _LAZY = {name: module for module, names in _HOMES.items() for name in names}
-# Submodules and subpackages reachable as attributes (``modeheat.io``); only lattice is in __all__.
-_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "io", "lattice", "models", "spectrum", "units")
+# Submodules and subpackages reachable as attributes (``modeheat.io``); lattice and representations are in __all__.
+_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "io", "lattice", "models", "representations", "spectrum", "units")
 
 
 def _version() -> str:

@@ -26,8 +26,8 @@ import numpy as np
 import pandas as pd
 from scipy.special import ndtr
 
-from . import special
-from ._engine import ModeSet
+from .engine import special
+from .engine.modeset import ModeSet
 from .errors import InputError
 from .models import Band, Component, Einstein, Mixture
 from .spectrum import Spectrum
