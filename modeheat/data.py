@@ -125,6 +125,7 @@ from .units import FREQUENCY_UNITS, KELVIN_RANGE, check_unit
 __all__ = [
     "read_spectrum",
     "write_table",
+    "write_text_file",
     "check_table_destination",
     "read_heat_capacity",
     "HeatCapacityWarning",
@@ -672,8 +673,34 @@ def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool
         FIFO, a socket or a symbolic link (:func:`check_table_destination`), the folder
         is missing or not writable, or the table carries no units or basis.
     """
+    return write_text_file(path, _table_text(frame), overwrite=overwrite)
+
+
+def write_text_file(path: str | os.PathLike, text: str, *, overwrite: bool = False) -> Path:
+    """Write UTF-8 text to a new file, atomically; the way every modeheat file is written.
+
+    The text goes to a temporary file in the same folder that is renamed into place, so
+    an interrupted write leaves any earlier file intact; without `overwrite` an existing
+    file is never replaced, even one created meanwhile.
+
+    Parameters
+    ----------
+    path : str or os.PathLike — the file to write
+    text : str — its whole content
+    overwrite : bool — replace an existing regular file (by default that is an error)
+
+    Returns
+    -------
+    pathlib.Path
+        The file written.
+
+    Raises
+    ------
+    InputError
+        As :func:`write_table`: the file exists and `overwrite` is false, the path is not
+        (or would not become) a regular file, or the folder is missing or not writable.
+    """
     path = Path(path)
-    text = _table_text(frame)
     check_table_destination(path)
     if not overwrite and path.exists():
         raise InputError("the file exists; choose another name or allow overwriting", path=path)
