@@ -60,6 +60,8 @@ __all__ = [
     "thermo",
     "read_spectrum",
     "write_table",
+    "load_session",
+    "save_session",
     "zero_point_energy",
 ]
 
@@ -74,6 +76,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
         "read_spectrum",
         "write_table",
     ),
+    "io.sessions": ("load_session", "save_session"),
     "fitting": (
         "DebyeBreakdown",
         "FitQuality",

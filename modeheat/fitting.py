@@ -191,6 +191,19 @@ class LowTemperatureFit:
     terms: tuple
     table: pd.DataFrame
 
+    def to_dict(self) -> dict:
+        """A JSON-safe document of this object (:func:`modeheat.io.sessions.to_dict`)."""
+        from .io import sessions  # imported here: sessions imports this module
+
+        return sessions.to_dict(self)
+
+    @classmethod
+    def from_dict(cls, document):
+        """The object a :meth:`to_dict` document holds (:func:`modeheat.io.sessions.from_dict`)."""
+        from .io import sessions
+
+        return sessions.from_dict(document, expect=cls)
+
     def heat_capacity(self, temperatures) -> np.ndarray:
         """The fitted C = γT + βT³ (+ δT⁵) in J/(mol K) at temperatures in K."""
         T = np.asarray(temperatures, dtype=float)
@@ -503,6 +516,19 @@ class FitResult:
         modes = sum(k.endswith(".modes") for k in self.varied)
         return self.n_points - len(self.varied) + (1 if modes else 0)
 
+    def to_dict(self) -> dict:
+        """A JSON-safe document of this object (:func:`modeheat.io.sessions.to_dict`)."""
+        from .io import sessions  # imported here: sessions imports this module
+
+        return sessions.to_dict(self)
+
+    @classmethod
+    def from_dict(cls, document):
+        """The object a :meth:`to_dict` document holds (:func:`modeheat.io.sessions.from_dict`)."""
+        from .io import sessions
+
+        return sessions.from_dict(document, expect=cls)
+
     @cached_property
     def quality(self) -> FitQuality:
         return _quality(self)
@@ -680,6 +706,19 @@ class FitQuality:
     worst_range: tuple
     problems: tuple
     advice: tuple
+
+    def to_dict(self) -> dict:
+        """A JSON-safe document of this object (:func:`modeheat.io.sessions.to_dict`)."""
+        from .io import sessions  # imported here: sessions imports this module
+
+        return sessions.to_dict(self)
+
+    @classmethod
+    def from_dict(cls, document):
+        """The object a :meth:`to_dict` document holds (:func:`modeheat.io.sessions.from_dict`)."""
+        from .io import sessions
+
+        return sessions.from_dict(document, expect=cls)
 
     def __post_init__(self):
         if self.verdict not in ("good", "poor", "sigma overestimated"):

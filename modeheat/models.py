@@ -298,6 +298,19 @@ class Component:
             return Mixture((self,))
         return NotImplemented
 
+    def to_dict(self) -> dict:
+        """A JSON-safe document of this object (:func:`modeheat.io.sessions.to_dict`)."""
+        from .io import sessions  # imported here: sessions imports this module
+
+        return sessions.to_dict(self)
+
+    @classmethod
+    def from_dict(cls, document):
+        """The object a :meth:`to_dict` document holds (:func:`modeheat.io.sessions.from_dict`)."""
+        from .io import sessions
+
+        return sessions.from_dict(document, expect=cls)
+
     def replace(self, **changes) -> "Component":
         """A copy with some fields changed (validated again)."""
         return dataclasses.replace(self, **changes)
@@ -633,6 +646,19 @@ class Mixture:
             changes.setdefault(cname, {})[pname] = value
         comps = tuple(c.replace(**changes[c.name]) if c.name in changes else c for c in self.components)
         return dataclasses.replace(self, components=comps)
+
+    def to_dict(self) -> dict:
+        """A JSON-safe document of this object (:func:`modeheat.io.sessions.to_dict`)."""
+        from .io import sessions  # imported here: sessions imports this module
+
+        return sessions.to_dict(self)
+
+    @classmethod
+    def from_dict(cls, document):
+        """The object a :meth:`to_dict` document holds (:func:`modeheat.io.sessions.from_dict`)."""
+        from .io import sessions
+
+        return sessions.from_dict(document, expect=cls)
 
     def with_atoms(self, atoms: float | None, check: str = "error") -> "Mixture":
         """The same components with the mode count checked against 3·atoms."""

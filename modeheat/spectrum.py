@@ -832,6 +832,32 @@ class Spectrum:
         level = 9.0 * self._atoms / theta0**3 if np.isfinite(theta0) and theta0 > 0 else math.nan
         return ReducedDensity(f[pos].copy(), self._density[pos] / f[pos] ** 2, level, self._unit)
 
+    # --- sessions: documents, pickling, copies and equality (modeheat/io/sessions.py) --------
+    def to_dict(self) -> dict:
+        """A JSON-safe document of this spectrum's whole state (:func:`modeheat.io.sessions.to_dict`)."""
+        from .io import sessions  # imported here: sessions imports this module
+
+        return sessions.to_dict(self)
+
+    @classmethod
+    def from_dict(cls, document) -> "Spectrum":
+        """The spectrum a :meth:`to_dict` document holds, exactly as it was."""
+        from .io import sessions
+
+        return sessions.from_dict(document, expect=cls)
+
+    def __reduce__(self):
+        from .io import sessions
+
+        return sessions.from_dict, (sessions.to_dict(self),)
+
+    def __eq__(self, other) -> bool:
+        from .io import sessions
+
+        return sessions.spectrum_eq(self, other)
+
+    __hash__ = None  # equal by value and immutable by convention only, like an array
+
     def __repr__(self) -> str:
         name = f"{self._name!r}, " if self._name else ""
         return (
