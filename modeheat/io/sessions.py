@@ -62,7 +62,7 @@ from ..fitting import FitQuality, FitResult, LowTemperatureFit
 from ..models import Band, Component, Debye, Dilatation, Einstein, Electronic, Mixture, Schottky, SineChain
 from ..spectrum import LOW_T_CHOICES, Spectrum, _check_low_t, _Continuation
 from ..thermo import CAUTION
-from ..units import check_unit
+from ..units import ATOMS_RANGE, KELVIN_RANGE, check_unit
 
 __all__ = ["SCHEMA", "FORMAT", "to_dict", "from_dict", "save_session", "load_session", "spectrum_eq"]
 
@@ -247,7 +247,7 @@ class _Value:
         if isinstance(value, dict) and all(isinstance(k, str) for k in value):
             return {"map": {k: self.encode(v) for k, v in value.items()}}
         raise InputError(
-            f"cannot store a {type(value).__name__} value in a session (attrs may hold None, booleans, numbers, "
+            f"cannot store a value of type {type(value).__name__} in a session (attrs may hold None, booleans, numbers, "
             "strings, 1-D numeric arrays, and lists, tuples and string-keyed dicts of these)"
         )
 
@@ -516,6 +516,7 @@ _register("table", pd.DataFrame, _table_out, _table_in)
 
 # --- spectra --------------------------------------------------------------------------------------
 _SPECTRUM_KINDS = ("sampled", "modes", "histogram")
+_LARGEST = 1e100  # mode counts beyond this have no meaning and would overflow the engine's sums
 _ATOMS_SOURCES = ("given", "file", "integral")
 _METHODS = ("auto", "fit", "extrapolate", "theta", "off")
 
@@ -562,6 +563,14 @@ def _same_length(where: str, array: np.ndarray, size: int, other: str) -> np.nda
     return array
 
 
+def _within(where: str, values: np.ndarray | float, lo: float, hi: float = math.inf) -> None:
+    """Refuse values outside [lo, hi]: a stored spectrum held none, and the engine needs them."""
+    bad = np.flatnonzero(~((np.asarray(values) >= lo) & (np.asarray(values) <= hi)))
+    if bad.size:
+        place = _item(where, int(bad[0])) if np.ndim(values) else where
+        _fail(place, f"expected a value from {lo:g} to {hi:g}, not {float(np.ravel(values)[bad[0]])!r}")
+
+
 def _spectrum_in(read: _Reader) -> Spectrum:
     w = read.where
     kind = _choice(read, "spectrum_kind", _SPECTRUM_KINDS)
@@ -571,7 +580,9 @@ def _spectrum_in(read: _Reader) -> Spectrum:
         low_t = FINITE.decode(low_t, _at(w, "low_t"))  # a Debye temperature in K
     low_t = _built(_at(w, "low_t"), _check_low_t, low_t=low_t)
     frequency = read("frequency", ARRAY)
+    _within(_at(w, "frequency"), frequency, 0.0)
     density = _same_length(_at(w, "density"), read("density", ARRAY), frequency.size, "frequency")
+    _within(_at(w, "density"), density, 0.0)
     partials = read("partials", _Map(ARRAY))
     for name, values in partials.items():
         _same_length(_item(_at(w, "partials"), name), values, frequency.size, "frequency")
@@ -586,24 +597,34 @@ def _spectrum_in(read: _Reader) -> Spectrum:
     cont.finish()
     engine = _sub(read("modeset", _Pass()), _at(w, "modeset"))
     theta = engine("theta", ARRAY)
+    _within(_at(engine.where, "theta"), theta, *KELVIN_RANGE)
     weight = _same_length(_at(engine.where, "weight"), engine("weight", ARRAY), theta.size, "theta")
+    # quadrature weights of the density's interpolation may be slightly negative
+    _within(_at(engine.where, "weight"), weight, -_LARGEST, _LARGEST)
     branches = []
     for k, raw in enumerate(engine("branches", _Tuple(_Pass()))):
         b = _sub(raw, _item(_at(engine.where, "branches"), k))
         dim = b("dim", INT)
         if dim not in (1, 2, 3):
             _fail(_at(b.where, "dim"), f"expected 1, 2 or 3, not {dim}")
-        branches.append(DebyeBranch(theta=b("theta", FINITE), modes=b("modes", FINITE), dim=dim))
+        branch = DebyeBranch(theta=b("theta", FINITE), modes=b("modes", FINITE), dim=dim)
+        _within(_at(b.where, "theta"), branch.theta, *KELVIN_RANGE)
+        _within(_at(b.where, "modes"), branch.modes, 0.0, _LARGEST)
         b.finish()
+        branches.append(branch)
     modeset = ModeSet(theta, weight, branches=tuple(branches), atoms=engine("atoms", FINITE))
+    _within(_at(engine.where, "atoms"), modeset.atoms, *ATOMS_RANGE)
     engine.finish()
+    atoms = read("atoms", FINITE)
+    _within(_at(w, "atoms"), atoms, *ATOMS_RANGE)
+    _within(_at(w, "continuation.cutoff"), continuation.cutoff, 0.0, KELVIN_RANGE[1])
     return Spectrum._from_parts(
         kind=kind,
         frequency=frequency,
         density=density,
         partials=partials,
         unit=unit,
-        atoms=read("atoms", FINITE),
+        atoms=atoms,
         name=read("name", _Optional(STR)),
         low_t=low_t,
         continuation=continuation,
