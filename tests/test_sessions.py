@@ -81,7 +81,7 @@ def test_random_floats_round_trip_bit_for_bit(values):
 def test_non_finite_numbers_are_written_as_documented_strings():
     doc = sessions.to_dict(pd.DataFrame({"x": [math.nan, math.inf, -math.inf, 1.5]}))
     assert doc["columns"][0]["values"] == ["nan", "inf", "-inf", 1.5]
-    assert sessions.to_dict(pd.DataFrame({"x": [1.0]}).assign())["schema"] == sessions.SCHEMA
+    assert doc["kind"] == "table" and doc["schema"] == sessions.SCHEMA
 
 
 # --- spectra ----------------------------------------------------------------------------------------
@@ -169,7 +169,6 @@ def test_spectrum_equality_is_by_value():
     assert s != _sampled(atoms=2, low_t="off")
     assert s != s.to("meV")
     assert s != _sampled(atoms=2.5)
-    assert s.to("meV").to("THz") != s or same_floats(s.to("meV").to("THz").frequency, s.frequency)
     assert (s == "a spectrum") is False and s != 1.0
     with pytest.raises(TypeError):
         hash(s)

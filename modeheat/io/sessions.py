@@ -227,6 +227,16 @@ class _Object:
         return _decode(raw, where, self.expect)
 
 
+class _Pass:
+    """A value taken as it is, checked by its reader."""
+
+    def encode(self, value):
+        return value
+
+    def decode(self, raw, where):
+        return raw
+
+
 class _Value:
     """Any value a table's ``attrs`` may hold (module docstring)."""
 
@@ -499,16 +509,6 @@ def _table_in(read: _Reader) -> pd.DataFrame:
     frame = pd.DataFrame(data, index=None if labels is None else list(labels))
     frame.attrs.update(attrs)
     return frame
-
-
-class _Pass:
-    """A value taken as it is, checked by its reader."""
-
-    def encode(self, value):
-        return value
-
-    def decode(self, raw, where):
-        return raw
 
 
 _register("table", pd.DataFrame, _table_out, _table_in)
