@@ -377,6 +377,25 @@ def test_damaged_spectrum_documents():
         sessions.from_dict([1, 2])
 
 
+def test_damaged_table_documents():
+    good = sessions.to_dict(pd.DataFrame({"T": [1.0, 2.0], "n": [1, 2]}))
+
+    def damaged(change) -> str:
+        doc = json.loads(json.dumps(good))
+        change(doc)
+        with pytest.raises(InputError) as info:
+            sessions.from_dict(doc)
+        return str(info.value)
+
+    assert damaged(lambda d: d["columns"][1]["values"].pop()).startswith("columns[1].values: expected 2 values")
+    assert damaged(lambda d: d["columns"][1].update(dtype="complex")).startswith("columns[1].dtype: expected one of")
+    assert damaged(lambda d: d["columns"][1]["values"].__setitem__(0, 1.5)).startswith("columns[1].values[0]: expected a whole")
+    assert damaged(lambda d: d["columns"][1].update(name="T")).startswith("columns[1].name: column 'T' appears twice")
+    assert damaged(lambda d: d.update(index=["a"])).startswith("index: expected 2 labels")
+    assert damaged(lambda d: d.update(attrs={"x": 1, "y": 2})).startswith("attrs: expected a JSON value or one of")
+    assert damaged(lambda d: d.update(attrs=[1])).startswith("attrs: expected a tagged map")
+
+
 def test_damaged_session_files_name_the_file(tmp_path):
     path = tmp_path / "s.json"
     mh.save_session(path, {"mix": (mh.Debye(300.0) + mh.Einstein(400.0) + mh.Einstein(500.0))})

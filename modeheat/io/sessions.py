@@ -125,10 +125,10 @@ def _float_in(raw: object, where: str, finite: bool = False) -> float:
 class _Number:
     finite: bool = False
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         return _float_out(value)
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         return _float_in(raw, where, self.finite)
 
 
@@ -139,10 +139,10 @@ class _Plain:
     kind: type
     label: str
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         return self.kind(value)
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         if type(raw) is not self.kind:
             _fail(where, f"expected {self.label}, not {_what(raw)}")
         return raw
@@ -152,10 +152,10 @@ class _Plain:
 class _Optional:
     inner: Any
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         return None if value is None else self.inner.encode(value)
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         return None if raw is None else self.inner.decode(raw, where)
 
 
@@ -164,10 +164,10 @@ class _Tuple:
     inner: Any
     length: int | None = None
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         return [self.inner.encode(v) for v in value]
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         if not isinstance(raw, list):
             _fail(where, f"expected a list, not {_what(raw)}")
         if self.length is not None and len(raw) != self.length:
@@ -181,10 +181,10 @@ class _Map:
 
     inner: Any
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         return {str(k): self.inner.encode(v) for k, v in value.items()}
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         if not isinstance(raw, dict):
             _fail(where, f"expected an object of names to values, not {_what(raw)}")
         return {k: self.inner.decode(v, _item(where, k)) for k, v in raw.items()}
@@ -196,11 +196,11 @@ class _Array:
 
     finite: bool = True
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         a = np.asarray(value, dtype=float)
         return a.tolist() if np.isfinite(a).all() else [_float_out(v) for v in a.tolist()]
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         if not isinstance(raw, list):
             _fail(where, f"expected a list of numbers, not {_what(raw)}")
         kinds = {type(v) for v in raw}
@@ -220,27 +220,27 @@ class _Object:
 
     expect: type
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         return to_dict(value)
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         return _decode(raw, where, self.expect)
 
 
 class _Pass:
     """A value taken as it is, checked by its reader."""
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         return value
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         return raw
 
 
 class _Value:
     """Any value a table's ``attrs`` may hold (module docstring)."""
 
-    def encode(self, value):
+    def encode(self, value: Any) -> Any:
         if value is None or isinstance(value, (bool, str, np.bool_)):
             return value if not isinstance(value, np.bool_) else bool(value)
         if isinstance(value, (int, np.integer)):
@@ -261,7 +261,7 @@ class _Value:
             "strings, 1-D numeric arrays, and lists, tuples and string-keyed dicts of these)"
         )
 
-    def decode(self, raw, where):
+    def decode(self, raw: object, where: str) -> Any:
         if raw is None or isinstance(raw, (bool, str, int, float)):
             return raw
         if isinstance(raw, list):
