@@ -66,6 +66,9 @@ __all__ = [
     # spring-model lattices (a subpackage); plot-ready curves for views and figures (a module)
     "lattice",
     "representations",
+    # sessions: every object above as a JSON-safe document, and session files
+    "save_session",
+    "load_session",
     # errors and warnings
     "ModeheatError",
     "InputError",
@@ -78,6 +81,7 @@ __all__ = [
 # The module each lazily imported public name lives in.
 _HOMES: dict[str, tuple[str, ...]] = {
     "spectrum": ("ReducedDensity", "Spectrum", "debye_temperature_from_sound"),
+    "io.sessions": ("load_session", "save_session"),
     "models": (
         "Band",
         "Component",

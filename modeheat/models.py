@@ -33,6 +33,7 @@ from typing import ClassVar, Iterable, Mapping
 import numpy as np
 from scipy import integrate
 
+from ._document import Documented
 from .cp_cv import cp_from_cv
 from .engine import special
 from .engine.modeset import DebyeBranch, ModeSet, _kernels
@@ -271,7 +272,7 @@ _RENDER_FRACTIONS = np.union1d(np.geomspace(1e-5, 1.0, 10_000), np.linspace(0.0,
 # --- components -------------------------------------------------------------------------------
 
 @dataclass(frozen=True)
-class Component:
+class Component(Documented):
     """Base of every model component: a frozen, validated parameter object.
 
     Subclasses name their continuous parameters in ``_continuous`` (what a fit varies
@@ -538,7 +539,7 @@ def _mode_count(c: Component) -> float:
 # --- mixtures -----------------------------------------------------------------------------------
 
 @dataclass(frozen=True)
-class Mixture:
+class Mixture(Documented):
     """Components that add into one solid.
 
     Parameters

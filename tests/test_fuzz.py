@@ -9,7 +9,12 @@ the same targets with thousands of examples.
 
 from __future__ import annotations
 
+import json
+from functools import lru_cache
+from pathlib import Path
+
 import numpy as np
+import pandas as pd
 import pytest
 from fuzzing import (
     cp_files,
@@ -130,3 +135,60 @@ def test_model_fit(data, model):
 @given(model=mixtures(), tolerance=st.sampled_from([0.01, 0.5, 0.0, 1e-300]))
 def test_model_breakdown(model, tolerance):
     outcome(lambda: mh.debye_breakdown(model(), tolerance=tolerance))
+
+
+@lru_cache(maxsize=None)
+def _session_text(folder: Path) -> str:
+    """A small valid session (invented test shapes): a spectrum, a mixture, data and a low-T fit."""
+    nu = np.linspace(0.0, 6.0, 13)
+    data = pd.DataFrame({"T": [2.0, 3.0, 4.0, 5.0], "C": [0.0021, 0.0055, 0.0118, 0.0215], "sigma": [1e-4] * 4})
+    objects = {
+        "dos": mh.Spectrum(nu, nu**2, atoms=1, partials={"a": nu**2}),
+        "mix": mh.Debye(300.0, modes=1.5) + mh.Einstein(400.0, modes=1.5) + mh.Electronic(1e-3),
+        "data": data,
+        "low": mh.low_temperature_fit(data, tmax=5.0),
+    }
+    return mh.save_session(folder / "session.json", objects).read_text(encoding="utf-8")
+
+
+def _places(value, path=()):
+    """The path of every value inside a JSON document, containers and their items."""
+    yield path
+    items = value.items() if isinstance(value, dict) else enumerate(value) if isinstance(value, list) else ()
+    for key, item in items:
+        yield from _places(item, path + (key,))
+
+
+_json_values = st.recursive(
+    st.one_of(
+        st.none(),
+        st.booleans(),
+        st.integers(-(10**30), 10**30),
+        numbers,
+        st.sampled_from(["nan", "inf", "-inf", "", "spectrum", "debye", "mixture", "table", "auto", "float64"]),
+    ),
+    lambda inner: st.lists(inner, max_size=3) | st.dictionaries(st.sampled_from(["kind", "schema", "map", "x"]), inner, max_size=2),
+    max_leaves=6,
+)
+
+
+@examples(300)
+@given(data=st.data())
+def test_damaged_session_files(folder, data):
+    doc = json.loads(_session_text(folder))
+    places = list(_places(doc))[1:]
+    path = data.draw(st.sampled_from(places))
+    parent = doc
+    for key in path[:-1]:
+        parent = parent[key]
+    if data.draw(st.booleans()):
+        del parent[path[-1]]
+    else:
+        parent[path[-1]] = data.draw(_json_values)
+    file = write(folder, json.dumps(doc), "session.json")
+
+    def load_and_use():
+        loaded = mh.load_session(file)
+        return [mh.thermo(v, T_GRID) for v in loaded.values() if isinstance(v, (mh.Spectrum, mh.Mixture))]
+
+    outcome(load_and_use)

@@ -9,6 +9,7 @@ from typing import Sequence
 import numpy as np
 import pandas as pd
 
+from .._document import Documented
 from ..errors import InputError
 from ..thermo import CAUTION, atoms_of_data
 from ..units import R
@@ -22,7 +23,7 @@ _LOW_T_TERMS = {"gamma": 0, "beta": 2, "delta": 4}  # power of T in C/T
 
 
 @dataclass(frozen=True, eq=False)
-class LowTemperatureFit:
+class LowTemperatureFit(Documented):
     """Result of :func:`low_temperature_fit`: C/T = γ + βT² (+ δT⁴).
 
     Attributes

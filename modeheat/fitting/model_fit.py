@@ -12,6 +12,7 @@ import numpy as np
 import pandas as pd
 from scipy import optimize
 
+from .._document import Documented
 from ..errors import InputError, ModeheatWarning
 from ..models import Component, Dilatation, Mixture
 from ..thermo import CAUTION, atoms_of_data, heat_capacity
@@ -117,7 +118,7 @@ class _Map:
 
 
 @dataclass(frozen=True, eq=False)
-class FitResult:
+class FitResult(Documented):
     """Result of :func:`fit`.
 
     Attributes

@@ -9,6 +9,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 from scipy.special import chdtri, gammaln
 
+from .._document import Documented
 from ..errors import InputError
 from ..models import Dilatation, Electronic
 from ._points import _window_text
@@ -65,7 +66,7 @@ _REGIONS = ("low-T end", "middle", "high-T end")
 
 
 @dataclass(frozen=True)
-class FitQuality:
+class FitQuality(Documented):
     """How well a fit describes its data, in numbers and words (:attr:`FitResult.quality`).
 
     Attributes

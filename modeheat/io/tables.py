@@ -14,7 +14,7 @@ import pandas as pd
 from ..errors import InputError
 from ..thermo import CAUTION, basis_text
 
-__all__ = ["write_table", "check_table_destination"]
+__all__ = ["write_table", "write_text_file", "check_table_destination"]
 
 
 # --- writing tables ------------------------------------------------------------------------
@@ -47,8 +47,34 @@ def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool
         FIFO, a socket or a symbolic link (:func:`check_table_destination`), the folder
         is missing or not writable, or the table carries no units or basis.
     """
+    return write_text_file(path, _table_text(frame), overwrite=overwrite)
+
+
+def write_text_file(path: str | os.PathLike, text: str, *, overwrite: bool = False) -> Path:
+    """Write UTF-8 text to a new file, atomically; the way every modeheat file is written.
+
+    The text goes to a temporary file in the same folder that is renamed into place, so
+    an interrupted write leaves any earlier file intact; without `overwrite` an existing
+    file is never replaced, even one created meanwhile.
+
+    Parameters
+    ----------
+    path : str or os.PathLike — the file to write
+    text : str — its whole content
+    overwrite : bool — replace an existing regular file (by default that is an error)
+
+    Returns
+    -------
+    pathlib.Path
+        The file written.
+
+    Raises
+    ------
+    InputError
+        As :func:`write_table`: the file exists and `overwrite` is false, the path is not
+        (or would not become) a regular file, or the folder is missing or not writable.
+    """
     path = Path(path)
-    text = _table_text(frame)
     check_table_destination(path)
     if not overwrite and path.exists():
         raise InputError("the file exists; choose another name or allow overwriting", path=path)

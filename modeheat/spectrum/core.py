@@ -64,6 +64,7 @@ from typing import Mapping
 import numpy as np
 from scipy import constants as _c
 
+from .._document import Documented
 from ..engine.modeset import ModeSet
 from ..errors import AtomCountWarning, InputError, SpectrumWarning
 from ..units import ATOMS_RANGE, KELVIN_RANGE, check_unit, kelvin_per
@@ -288,7 +289,7 @@ def _clip_noise(name: str, values: np.ndarray, who: str, order: np.ndarray) -> n
     return np.clip(values, 0.0, None)
 
 
-class Spectrum:
+class Spectrum(Documented):
     """A phonon density of states per formula unit, normalised to 3·atoms modes.
 
     Parameters
@@ -806,6 +807,19 @@ class Spectrum:
         theta0 = self.moment_debye_temperature(-3) / kelvin_per(self._unit)
         level = 9.0 * self._atoms / theta0**3 if np.isfinite(theta0) and theta0 > 0 else math.nan
         return ReducedDensity(f[pos].copy(), self._density[pos] / f[pos] ** 2, level, self._unit)
+
+    # --- sessions: documents, pickling, copies and equality (modeheat/io/sessions.py) --------
+    def __reduce__(self):
+        from ..io import sessions
+
+        return sessions.from_dict, (sessions.to_dict(self),)
+
+    def __eq__(self, other) -> bool:
+        from ..io import sessions
+
+        return sessions.spectrum_eq(self, other)
+
+    __hash__ = None  # equal by value and immutable by convention only, like an array
 
     def __repr__(self) -> str:
         name = f"{self._name!r}, " if self._name else ""
