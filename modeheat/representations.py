@@ -2,7 +2,7 @@
 
 Every function takes a *source* — a :class:`~modeheat.Spectrum`, a model component
 or a :class:`~modeheat.Mixture` — (or, for :func:`temperature_curves`, a heat-capacity
-data set from :func:`~modeheat.data.read_heat_capacity`) and returns a tidy
+data set from :func:`~modeheat.io.read_heat_capacity`) and returns a tidy
 :class:`pandas.DataFrame` whose ``attrs["units"]`` names the unit of every column.
 A view picks columns and assigns them to marks; it does no numerics itself.
 
@@ -78,7 +78,7 @@ def temperature_curves(
     ----------
     source : Spectrum, component, Mixture, or DataFrame — a model or spectrum, or
         heat-capacity data (columns ``T`` [K], ``C`` [J/(mol K)], optional ``sigma``;
-        ``attrs["atoms"]`` as :func:`~modeheat.data.read_heat_capacity` stores it)
+        ``attrs["atoms"]`` as :func:`~modeheat.io.read_heat_capacity` stores it)
     temperatures : array_like — T in K, each in 1e-12–1e12 K; for data, None (the
         data's own temperatures)
     per : {"formula", "atom", "gram"} — basis of a source's values (as :func:`~modeheat.thermo`)

@@ -2,7 +2,7 @@
 
 :func:`to_dict` turns a spectrum, a model component, a mixture, a table (a DataFrame
 with its ``attrs``, e.g. heat-capacity data from
-:func:`~modeheat.data.read_heat_capacity`), a fit result or a low-temperature fit
+:func:`~modeheat.io.read_heat_capacity`), a fit result or a low-temperature fit
 result into a document of plain JSON values; :func:`from_dict` rebuilds the object.
 :func:`save_session` and :func:`load_session` write and read several named objects as
 one JSON file.
@@ -758,7 +758,7 @@ def save_session(path: str | os.PathLike, objects: Mapping[str, object], *, over
     ------
     InputError
         An object a session cannot store (the message names it), or a destination that
-        exists or cannot be written (:func:`modeheat.data.write_text_file`).
+        exists or cannot be written (:func:`modeheat.io.tables.write_text_file`).
     """
     if not isinstance(objects, Mapping) or not all(isinstance(k, str) for k in objects):
         raise InputError("objects must be a dict of names (strings) to modeheat objects", path=path)
