@@ -36,7 +36,7 @@ from scipy import integrate
 from ._document import Documented
 from .cp_cv import cp_from_cv
 from .engine import special
-from .engine.modeset import DebyeBranch, ModeSet, _kernels
+from .engine.modeset import DebyeBranch, ModeSet
 from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
 from .units import R, check_kelvin, check_unit, kelvin_per
@@ -156,7 +156,7 @@ class _BandBranch:
         a, b = self.theta_low / T, self.theta_high / T
         edges = np.minimum(a[:, None] + _PANEL_EDGES[None, :], b[:, None])
         x, w = _gl_panels(edges)
-        cv, e, f = _kernels(x)
+        cv, e, f = special.einstein_terms(x)
         # Near x = 0, ln(1 − e^(−x)) has a log singularity: integrate ln x exactly on
         # the first panel and only the smooth rest by quadrature.
         near = a < 1.0
@@ -216,7 +216,7 @@ class _SineBranch:
         s, w = _gl_panels(edges)
         w = w * d * s ** (d - 1)
         x = r[:, None] * np.sin(0.5 * math.pi * s)
-        cv, e, f = _kernels(x)
+        cv, e, f = special.einstein_terms(x)
         # First panel: ln(1 − e^(−x)) = ln(r·πs/2) + ln(sin(πs/2)/(πs/2)) + ln((1 − e^(−x))/x),
         # the first term integrated exactly, the rest smooth.
         sf = s[:, _FIRST]

@@ -47,17 +47,6 @@ class Extra(Protocol):
     def terms(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]: ...
 
 
-def _kernels(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Einstein C/k, U_th/(kT) and F_th/(kT) per mode at x = θ/T > 0."""
-    with np.errstate(over="ignore", under="ignore"):
-        ex = np.exp(-x)
-        d = -np.expm1(-x)
-        e = x * ex / d
-        cv = e * x / d
-        f = np.where(x < 0.6931471805599453, np.log(d), np.log1p(-ex))
-    return cv, e, f
-
-
 def _lagrange_weights(t: np.ndarray, offsets: np.ndarray) -> list[np.ndarray]:
     """Lagrange basis polynomials on the points `offsets`, each evaluated at t."""
     p = len(offsets)
@@ -299,7 +288,7 @@ class ModeSet:
         lw, lv = grid.size, kmax - kmin + 1
         # kernel at s = (i − k)·DELTA for every node index i and temperature index k
         m = np.arange(first - kmax, first + lw - 1 - kmin + 1)
-        kern = _kernels(np.exp(m * DELTA))
+        kern = special.einstein_terms(np.exp(m * DELTA))
         # Only the lv outputs where the node grid lies wholly inside the kernel are
         # needed, and circular wrap-around cannot reach them at this size.
         size = _fft.next_fast_len(m.size, real=True)
@@ -330,7 +319,7 @@ def _direct(theta: np.ndarray, weight: np.ndarray, T: np.ndarray):
     step = max(1, _CHUNK // max(theta.size, 1))
     for lo in range(0, T.size, step):
         x = theta[None, :] / T[lo : lo + step, None]
-        k_cv, k_e, k_f = _kernels(x)
+        k_cv, k_e, k_f = special.einstein_terms(x)
         cv[lo : lo + step] = k_cv @ weight
         e[lo : lo + step] = k_e @ weight
         f[lo : lo + step] = k_f @ weight

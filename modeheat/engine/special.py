@@ -32,6 +32,7 @@ from scipy.special import bernoulli, zeta
 from ..errors import InputError
 
 __all__ = [
+    "einstein_terms",
     "einstein_cv",
     "einstein_entropy",
     "einstein_energy",
@@ -66,19 +67,44 @@ def _check_dim(dim: int) -> int:
 
 # --- Einstein ---------------------------------------------------------------------
 
-def _bose(x: np.ndarray) -> np.ndarray:
-    """x/(eˣ−1) without overflow; 1 at x = 0 and 0 at x = ∞."""
-    with np.errstate(invalid="ignore", divide="ignore"):
+def einstein_terms(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """C/k, U_th/(kT) and F_th/(kT) of one Einstein mode at x = θ/T > 0, unchecked.
+
+    The one Einstein kernel: the engine's node sums and the model quadratures call it
+    directly on arrays they know to be positive; the checked functions below add the
+    limits at x = 0 and x = ∞.  e^(−x) keeps every term finite without overflow, and
+    log1p keeps ln(1 − e^(−x)) exact where e^(−x) ≪ 1.
+    """
+    with np.errstate(over="ignore", under="ignore"):
         ex = np.exp(-x)
-        out = x * ex / -np.expm1(-x)
-    out = np.where(x == 0, 1.0, out)
-    return np.where(np.isinf(x), 0.0, out)
+        d = -np.expm1(-x)
+        e = x * ex / d
+        cv = e * x / d
+        f = np.where(x < _LN2, np.log(d), np.log1p(-ex))
+    return cv, e, f
+
+
+_LN2 = math.log(2.0)
+
+
+def _limits(x: np.ndarray, values: np.ndarray, at_zero: float) -> np.ndarray:
+    """`values` with the exact limits at x = 0 (`at_zero`) and x = ∞ (0)."""
+    return np.where(x == 0, at_zero, np.where(np.isinf(x), 0.0, values))
+
+
+def _terms(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return einstein_terms(x)
+
+
+def _bose(x: np.ndarray) -> np.ndarray:
+    """x/(eˣ−1); 1 at x = 0 and 0 at x = ∞."""
+    return _limits(x, _terms(x)[1], 1.0)
 
 
 def _log_one_minus_exp(x: np.ndarray) -> np.ndarray:
-    """ln(1 − e^(−x)); −∞ at x = 0.  log1p keeps it exact where e^(−x) ≪ 1."""
-    with np.errstate(divide="ignore"):
-        return np.where(x < math.log(2.0), np.log(-np.expm1(-x)), np.log1p(-np.exp(-x)))
+    """ln(1 − e^(−x)); −∞ at x = 0 and 0 at x = ∞."""
+    return _limits(x, _terms(x)[2], -np.inf)
 
 
 def einstein_cv(x):
@@ -89,11 +115,7 @@ def einstein_cv(x):
     x : array_like — θ_E/T, dimensionless, ≥ 0
     """
     x = _as_x(x)
-    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        ex = np.exp(-x)
-        out = x * x * ex / np.expm1(-x) ** 2
-    out = np.where(x == 0, 1.0, out)
-    return np.where(np.isinf(x), 0.0, out)
+    return _limits(x, _terms(x)[0], 1.0)
 
 
 def einstein_energy(x):
@@ -102,14 +124,15 @@ def einstein_energy(x):
 
 
 def einstein_free_energy(x):
-    """Thermal free energy of one Einstein mode in units of kT, ln(1 − e^(−x))."""
+    """Thermal free energy of one Einstein mode in units of kT, ln(1 − e^(−x)); −∞ at x = 0."""
     return _log_one_minus_exp(_as_x(x))
 
 
 def einstein_entropy(x):
     """Entropy of one Einstein mode, S/k = x/(eˣ−1) − ln(1 − e^(−x)); +∞ at x = 0."""
     x = _as_x(x)
-    return _bose(x) - _log_one_minus_exp(x)
+    _, e, f = _terms(x)
+    return _limits(x, e - f, np.inf)
 
 
 # --- Debye ------------------------------------------------------------------------
