@@ -36,6 +36,7 @@ This module imports nothing heavy, so it costs nothing at start-up.
 
 from __future__ import annotations
 
+import operator
 import sys
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
@@ -67,14 +68,17 @@ class Progress:
     result: Any = field(default=None, repr=False, compare=False)
 
     def __post_init__(self) -> None:
-        if isinstance(self.done, bool) or not isinstance(self.done, int) or self.done < 0:
+        done = _whole(self.done)
+        if done is None or done < 0:
             raise InputError(f"Progress.done must be an integer ≥ 0, not {self.done!r}")
-        if self.total is not None and (
-            isinstance(self.total, bool) or not isinstance(self.total, int) or self.total < self.done
-        ):
-            raise InputError(f"Progress.total must be None or an integer ≥ done = {self.done}, not {self.total!r}")
+        total = None if self.total is None else _whole(self.total)
+        if self.total is not None and (total is None or total < done):
+            raise InputError(f"Progress.total must be None or an integer ≥ done = {done}, not {self.total!r}")
         if not isinstance(self.stage, str) or not isinstance(self.message, str):
             raise InputError("Progress.stage and Progress.message must be strings")
+        # numpy integers become plain ones, so a record prints and compares simply
+        object.__setattr__(self, "done", done)
+        object.__setattr__(self, "total", total)
 
     @property
     def fraction(self) -> float | None:
@@ -82,6 +86,16 @@ class Progress:
         if self.total is None:
             return None
         return self.done / self.total if self.total else 1.0
+
+
+def _whole(value: object) -> int | None:
+    """`value` as an int when it is an integer (numpy's too, never a bool), else None."""
+    if isinstance(value, bool):
+        return None
+    try:
+        return operator.index(value)
+    except TypeError:
+        return None
 
 
 ProgressCallback = Callable[[Progress], Any]

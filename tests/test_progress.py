@@ -62,6 +62,8 @@ def test_progress_record_validates_itself():
     assert step.fraction == 0.75 and Progress(0, 0, "files").fraction == 1.0 and Progress(2, None, "fit").fraction is None
     with pytest.raises(AttributeError):
         step.done = 4  # frozen
+    counted = Progress(np.int64(2), np.int64(4), "x")
+    assert type(counted.done) is int and type(counted.total) is int and counted == Progress(2, 4, "x")
     for bad in ((-1, 4, "x"), (5, 4, "x"), (True, 4, "x"), (1.5, None, "x"), (1, 2, 3)):
         with pytest.raises(InputError):
             Progress(*bad)
