@@ -17,7 +17,7 @@ import importlib
 import sys
 import types
 
-from .errors import AtomCountWarning, InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
+from .errors import AtomCountWarning, Cancelled, InputError, ModeheatError, ModeheatWarning, NoDebyeTemperatureWarning, SpectrumWarning
 
 # The public API, by what a user does with it.
 __all__ = [
@@ -66,12 +66,15 @@ __all__ = [
     # spring-model lattices (a subpackage); plot-ready curves for views and figures (a module)
     "lattice",
     "representations",
+    # progress and cancellation of long work (fits, lattice DOS, batches): a module
+    "progress",
     # sessions: every object above as a JSON-safe document, and session files
     "save_session",
     "load_session",
     # errors and warnings
     "ModeheatError",
     "InputError",
+    "Cancelled",
     "ModeheatWarning",
     "SpectrumWarning",
     "AtomCountWarning",
@@ -119,8 +122,8 @@ _HOMES: dict[str, tuple[str, ...]] = {
     ),
 }
 _LAZY = {name: module for module, names in _HOMES.items() for name in names}
-# Submodules and subpackages reachable as attributes (``modeheat.io``); lattice and representations are in __all__.
-_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "io", "lattice", "models", "representations", "spectrum", "units")
+# Submodules and subpackages reachable as attributes (``modeheat.io``); lattice, representations and progress are in __all__.
+_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "io", "lattice", "models", "progress", "representations", "spectrum", "units")
 
 
 def _version() -> str:

@@ -26,13 +26,14 @@ import math
 import os
 import sys
 import warnings
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
 from .errors import InputError, ModeheatError, ModeheatWarning
+from .progress import Progress, ProgressCallback, ProgressLine, drive
 from .units import FREQUENCY_UNITS, check_unit
 
 if TYPE_CHECKING:
@@ -459,19 +460,29 @@ def _missing_theta(frame: pd.DataFrame, path: str) -> str | None:
     )
 
 
-def _compute_all(jobs: list[_Job], workers: int, progress: bool) -> list[_Outcome]:
+def _compute_all(jobs: list[_Job], workers: int, progress: ProgressCallback | None) -> list[_Outcome]:
+    """Every job's outcome, in order, reporting each finished file to `progress`."""
+    return drive(_compute_steps(jobs, workers), progress)
+
+
+def _compute_steps(jobs: list[_Job], workers: int) -> Iterator[Progress]:
+    """The batch as long work (:mod:`modeheat.progress`): a record per finished file,
+    named in ``message``; the last carries every outcome, in the order of `jobs`."""
+    outcomes: list[_Outcome | None] = [None] * len(jobs)
     done = 0
 
-    def finished(outcome: _Outcome) -> _Outcome:
+    def finished(k: int, outcome: _Outcome) -> Progress:
         nonlocal done
+        outcomes[k] = outcome
         done += 1
-        if progress:
-            _progress(done, len(jobs), outcome.path)
-        return outcome
+        return Progress(
+            done, len(jobs), "files", os.path.basename(outcome.path), result=outcomes if done == len(jobs) else None
+        )
 
     if workers == 1:
-        return [finished(_compute(job)) for job in jobs]
-    outcomes: list[_Outcome | None] = [None] * len(jobs)
+        for k, job in enumerate(jobs):
+            yield finished(k, _compute(job))
+        return
     orphans: list[int] = []  # files in flight when a worker died
     with ProcessPoolExecutor(max_workers=workers) as pool:
         futures = {}
@@ -483,16 +494,17 @@ def _compute_all(jobs: list[_Job], workers: int, progress: bool) -> list[_Outcom
         for future in as_completed(futures):
             k = futures[future]
             try:
-                outcomes[k] = finished(future.result())
+                outcome = future.result()
             except BrokenProcessPool:
                 orphans.append(k)
+                continue
             except Exception as exc:  # e.g. a result that cannot travel back
-                outcomes[k] = finished(_Outcome(jobs[k].path, error=_internal(exc, jobs[k].path)))
+                outcome = _Outcome(jobs[k].path, error=_internal(exc, jobs[k].path))
+            yield finished(k, outcome)
     # A dead worker breaks the pool and every file in flight with it: compute those
     # again one process each, so only the file that kills its worker fails.
     for k in sorted(orphans):
-        outcomes[k] = finished(_alone(jobs[k]))
-    return outcomes
+        yield finished(k, _alone(jobs[k]))
 
 
 def _alone(job: _Job) -> _Outcome:
@@ -507,14 +519,6 @@ def _alone(job: _Job) -> _Outcome:
             )
         except Exception as exc:
             return _Outcome(job.path, error=_internal(exc, job.path))
-
-
-def _progress(done: int, count: int, path: str) -> None:
-    # \x1b[K clears what a longer name left on the line.
-    sys.stderr.write(f"\r[{done}/{count}] {os.path.basename(path)}\x1b[K")
-    if done == count:
-        sys.stderr.write("\r\x1b[K")
-    sys.stderr.flush()
 
 
 # --- the table command ------------------------------------------------------------------------------
@@ -533,8 +537,8 @@ def _table(args: argparse.Namespace) -> int:
         for path in files
     ]
     workers = min(args.jobs or os.cpu_count() or 1, len(jobs))
-    progress = len(jobs) >= _PROGRESS_FROM and sys.stderr.isatty()
-    outcomes = _compute_all(jobs, workers, progress)
+    # The terminal line is modeheat.progress's, the one a fit or a lattice DOS would draw.
+    outcomes = _compute_all(jobs, workers, ProgressLine() if len(jobs) >= _PROGRESS_FROM else None)
 
     good = [o for o in outcomes if o.error is None]
     for outcome in outcomes:

@@ -10,6 +10,7 @@ from __future__ import annotations
 __all__ = [
     "ModeheatError",
     "InputError",
+    "Cancelled",
     "ModeheatWarning",
     "SpectrumWarning",
     "AtomCountWarning",
@@ -58,6 +59,13 @@ class InputError(ModeheatError, ValueError):
         if self.line is not None:
             where += f", line {self.line}"
         return f"{where}: {self.problem}"
+
+
+class Cancelled(ModeheatError):
+    """Long work was stopped by its progress callback (:mod:`modeheat.progress`).
+
+    Raised instead of a result: nothing partial is returned and the inputs are unchanged.
+    """
 
 
 class ModeheatWarning(UserWarning):

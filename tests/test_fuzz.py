@@ -192,3 +192,20 @@ def test_damaged_session_files(folder, data):
         return [mh.thermo(v, T_GRID) for v in loaded.values() if isinstance(v, (mh.Spectrum, mh.Mixture))]
 
     outcome(load_and_use)
+
+
+@examples(80)
+@given(data=heat_capacity_frames(), model=mixtures(), stop=st.integers(1, 30))
+def test_model_fit_cancelled_by_its_progress_callback(data, model, stop):
+    # a cancelled fit is a ModeheatError (Cancelled) like any refusal, never another exception
+    outcome(lambda: mh.fit(model(), data, progress=lambda step: step.done < stop))
+
+
+@examples(200)
+@given(
+    done=st.one_of(st.integers(-3, 5), numbers, st.booleans(), st.none(), st.just(np.int64(2))),
+    total=st.one_of(st.integers(-3, 5), numbers, st.booleans(), st.none(), st.just(np.int64(4))),
+    stage=st.one_of(st.text(max_size=3), st.none(), st.integers()),
+)
+def test_progress_record(done, total, stage):
+    outcome(lambda: mh.progress.Progress(done, total, stage))

@@ -15,6 +15,7 @@ from scipy import optimize
 from .._document import Documented
 from ..errors import InputError, ModeheatWarning
 from ..models import Component, Dilatation, Mixture
+from ..progress import Progress, ProgressCallback, report
 from ..thermo import CAUTION, atoms_of_data, heat_capacity
 from ._points import _check_window, _data_sets, _points, _window_text
 from .quality import FitQuality, _quality
@@ -314,6 +315,7 @@ def fit(
     fixed: Mapping[str, float] | Iterable[str] | None = None,
     f_scale: float | None = None,
     atoms: float | None = None,
+    progress: ProgressCallback | None = None,
 ) -> FitResult:
     """Least-squares fit of a model component or mixture to measured C_p(T).
 
@@ -353,6 +355,11 @@ def fit(
         they store (``attrs["atoms"]``).  When known (given or stored,
         :func:`~modeheat.thermo.atoms_of_data`) the model must carry 3·atoms
         vibrational modes (its :meth:`Mixture.with_atoms` check)
+    progress : callable, optional — receives a :class:`~modeheat.progress.Progress` at
+        every residual evaluation (stage "fit" while searching, "uncertainties" for the
+        Jacobian at the solution; ``total`` None, the current χ² in ``message``) and a
+        last one with ``done == total``; returning ``False`` or raising
+        :class:`~modeheat.Cancelled` stops the fit at once (:mod:`modeheat.progress`)
 
     Returns
     -------
@@ -374,6 +381,8 @@ def fit(
         Unknown or contradictory parameter names, bad bounds, a single varied mode
         count, fewer points in the window than varied parameters + 1, more than one
         Dilatation component, an atom count unlike the data's or the model's.
+    Cancelled
+        The progress callback cancelled: no result, the model and data untouched.
     """
     mixture = _as_mixture(model)
     count, known = atoms_of_data(_data_sets(data), atoms)
@@ -431,11 +440,17 @@ def fit(
         except InputError:
             return None  # e.g. a band whose edges crossed, or no C_p for a trial A
 
+    evaluations, stage = 0, "fit"
+
     def residuals(x: np.ndarray) -> np.ndarray:
+        nonlocal evaluations
         m = predict(x)
-        if m is None:
-            return np.full(n, _PENALTY)
-        return (m - pts.C) * weights
+        r = np.full(n, _PENALTY) if m is None else (m - pts.C) * weights
+        if progress is not None:
+            # Raising here unwinds least_squares itself: a cancelled fit stops within one evaluation.
+            evaluations += 1
+            report(progress, Progress(evaluations, None, stage, f"χ² = {float(r @ r):.6g}"))
+        return r
 
     x0 = np.clip(mapping.start(current), lo, hi)
     options = dict(bounds=(lo, hi), method="trf", x_scale=1.0, xtol=1e-10, ftol=1e-10, gtol=1e-10, max_nfev=2000)
@@ -459,6 +474,7 @@ def fit(
             raise InputError(f"f_scale must be positive, not {f_scale!r}")
         solution = optimize.least_squares(residuals, start, loss=loss, f_scale=scale_used, **options)
     x = solution.x
+    stage = "uncertainties"
     r = residuals(x)
     if not np.all(np.isfinite(r)) or np.any(r == _PENALTY):
         raise InputError("the fit ended on parameters that do not make a valid model; start closer to the data")
@@ -512,7 +528,7 @@ def fit(
             "dataset": pts.dataset,
         }
     )
-    return FitResult(
+    result = FitResult(
         model=fitted,
         params=params,
         stderr=stderr,
@@ -534,6 +550,8 @@ def fit(
         at_bound=at_bound,
         datasets=pts.names,
     )
+    report(progress, Progress(evaluations, evaluations, "fit", "finished"))
+    return result
 
 
 def _central_jacobian(fun, x: np.ndarray, lo: np.ndarray, hi: np.ndarray) -> np.ndarray:

@@ -38,7 +38,9 @@ The k-mesh is a uniform Γ-centred grid of N1×N2×N3 points over the reciprocal
 (a Monkhorst–Pack grid without shift), no symmetry used.  The long loop is a
 generator (:func:`iter_mesh`, :func:`iter_dos`) that yields a :class:`Progress` per
 batch, the last one carrying the result, so a command-line bar and a widget share one
-code path; :func:`mesh_modes` and :func:`dos` run it to the end.
+code path; :func:`mesh_modes` and :func:`dos` run it to the end and take a
+``progress=`` callback that may cancel (:mod:`modeheat.progress`, where ``Progress``
+lives; it is re-exported here).
 
 Density of states: the linear tetrahedron method.  Each sub-cell of the mesh is cut
 into six tetrahedra around its shortest main diagonal; inside each tetrahedron each
@@ -92,7 +94,8 @@ and the frequency-grid integration they share are in ``_base.py``.
 
 from __future__ import annotations
 
-from ._base import DensityOfStates, Dispersion, ElasticConstants, MeshModes, Progress
+from ..progress import Progress
+from ._base import DensityOfStates, Dispersion, ElasticConstants, MeshModes
 from .chains import DiatomicChain, MonatomicChain
 from .cubic import CubicLattice, RockSalt
 from .elastic import debye_coefficient, debye_temperature, elastic_velocities, sound_velocities

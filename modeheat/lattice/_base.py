@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import NamedTuple
 
 import numpy as np
 from scipy import constants as _c
@@ -13,7 +12,7 @@ from ..errors import InputError
 from ..spectrum import Spectrum
 from ..units import check_unit, kelvin_per
 
-__all__ = ["Progress", "MeshModes", "DensityOfStates", "Dispersion", "ElasticConstants"]
+__all__ = ["MeshModes", "DensityOfStates", "Dispersion", "ElasticConstants"]
 
 
 _AMU = _c.atomic_mass  # kg
@@ -65,23 +64,6 @@ def _freeze(obj, *names: str) -> None:
 
 # --------------------------------------------------------------------------------------
 # results
-
-
-class Progress(NamedTuple):
-    """One step of a long computation.
-
-    Attributes
-    ----------
-    done : int — batches finished
-    total : int — batches in all
-    stage : str — what is being done ("modes" or "tetrahedra")
-    result : object — None until the last step, which carries the finished result
-    """
-
-    done: int
-    total: int
-    stage: str
-    result: object = None
 
 
 @dataclass(frozen=True)

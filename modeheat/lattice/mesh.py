@@ -9,6 +9,7 @@ from typing import Union
 import numpy as np
 
 from ..errors import InputError
+from ..progress import Progress, ProgressCallback, drive
 from ..spectrum import Spectrum
 from ..units import check_unit, kelvin_per
 from ._base import (
@@ -18,7 +19,6 @@ from ._base import (
     DensityOfStates,
     Dispersion,
     MeshModes,
-    Progress,
     _finish,
     _frequencies,
     _grid,
@@ -66,8 +66,8 @@ def iter_mesh(model: Model3D, mesh=16, *, vectors: bool | None = None, batch: in
     Yields
     ------
     Progress
-        (done, total, "modes", None) after each batch; the last one carries the
-        :class:`MeshModes`.
+        ``Progress(done, total, "modes")`` after each batch; the last one carries the
+        :class:`MeshModes` in ``result``.
 
     Examples
     --------
@@ -104,19 +104,24 @@ def iter_mesh(model: Model3D, mesh=16, *, vectors: bool | None = None, batch: in
         if i < total - 1:
             yield Progress(i + 1, total, "modes")
     result = MeshModes(m, st.reciprocal, kpts, freq, weights, st.species, st.atoms, imaginary)
-    yield Progress(total, total, "modes", result)
+    yield Progress(total, total, "modes", result=result)
 
 
-def _run(steps: Iterator[Progress]):
-    last = None
-    for last in steps:
-        pass
-    return last.result
+def mesh_modes(
+    model: Model3D,
+    mesh=16,
+    *,
+    vectors: bool | None = None,
+    batch: int = _K_BATCH,
+    progress: ProgressCallback | None = None,
+) -> MeshModes:
+    """Every mode on a Γ-centred k-mesh: :func:`iter_mesh` run to the end.
 
-
-def mesh_modes(model: Model3D, mesh=16, *, vectors: bool | None = None, batch: int = _K_BATCH) -> MeshModes:
-    """Every mode on a Γ-centred k-mesh: :func:`iter_mesh` run to the end."""
-    return _run(iter_mesh(model, mesh, vectors=vectors, batch=batch))
+    `progress` is a callback that receives each :class:`~modeheat.progress.Progress`
+    and may cancel (:mod:`modeheat.progress`); the other parameters are
+    :func:`iter_mesh`'s.
+    """
+    return drive(iter_mesh(model, mesh, vectors=vectors, batch=batch), progress)
 
 
 # --------------------------------------------------------------------------------------
@@ -183,10 +188,18 @@ def _tetra_steps(modes: MeshModes, step: float | None, points: int, unit: str, n
     dens = _finish(grid, edges, cum * scale, None if pcum is None else pcum * scale, modes.species, modes.atoms, name)
     if unit != "THz":
         dens = dens.to(unit)
-    yield Progress(start + nbatch, total, "tetrahedra", dens)
+    yield Progress(start + nbatch, total, "tetrahedra", result=dens)
 
 
-def tetrahedron_dos(modes: MeshModes, *, step: float | None = None, points: int = _POINTS, unit: str = "THz", name: str | None = None) -> DensityOfStates:
+def tetrahedron_dos(
+    modes: MeshModes,
+    *,
+    step: float | None = None,
+    points: int = _POINTS,
+    unit: str = "THz",
+    name: str | None = None,
+    progress: ProgressCallback | None = None,
+) -> DensityOfStates:
     """Linear-tetrahedron DOS of the modes on a mesh (method in the module docstring).
 
     Parameters
@@ -196,8 +209,10 @@ def tetrahedron_dos(modes: MeshModes, *, step: float | None = None, points: int 
     points : int — grid points from 0 to just above the highest mode
     unit : str — frequency unit of the result
     name : str, optional
+    progress : callable, optional — receives a :class:`~modeheat.progress.Progress` per
+        batch of tetrahedra and may cancel (:mod:`modeheat.progress`)
     """
-    return _run(_tetra_steps(modes, step, points, unit, name))
+    return drive(_tetra_steps(modes, step, points, unit, name), progress)
 
 
 def iter_dos(
@@ -245,7 +260,7 @@ def iter_dos(
         if p.result is None:
             yield p
         else:
-            yield Progress(total, total, p.stage, p.result.spectrum(low_t=low_t))
+            yield Progress(total, total, p.stage, result=p.result.spectrum(low_t=low_t))
 
 
 def dos(
@@ -257,9 +272,15 @@ def dos(
     unit: str = "THz",
     low_t: str | float = "auto",
     name: str | None = None,
+    progress: ProgressCallback | None = None,
 ) -> Spectrum:
-    """The model's linear-tetrahedron DOS as a :class:`~modeheat.Spectrum`: :func:`iter_dos` run to the end."""
-    return _run(iter_dos(model, mesh, step=step, points=points, unit=unit, low_t=low_t, name=name))
+    """The model's linear-tetrahedron DOS as a :class:`~modeheat.Spectrum`: :func:`iter_dos` run to the end.
+
+    `progress` is a callback that receives each :class:`~modeheat.progress.Progress`
+    (both stages) and may cancel (:mod:`modeheat.progress`); the other parameters are
+    :func:`iter_dos`'s.
+    """
+    return drive(iter_dos(model, mesh, step=step, points=points, unit=unit, low_t=low_t, name=name), progress)
 
 
 # --------------------------------------------------------------------------------------

@@ -56,3 +56,13 @@ def test_views_benchmark_prints_times(capsys):
     print(out)
     # common practice: the mixture's 15 modes (3 per vibrational component); speed is reported, not asserted
     assert "target" in out and times["points"] == 2000 and abs(times["modes"] - 15.0) < 1e-9
+
+
+def test_progress_benchmark_prints_costs(capsys):
+    from bench_progress import main
+
+    result = main()
+    out = capsys.readouterr().out
+    print(out)
+    # every cancelled fit raised Cancelled; the costs are reported, not asserted
+    assert "ratio" in out and result["cancelled"] == 3
