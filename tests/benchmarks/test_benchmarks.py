@@ -56,3 +56,13 @@ def test_views_benchmark_prints_times(capsys):
     print(out)
     # common practice: the mixture's 15 modes (3 per vibrational component); speed is reported, not asserted
     assert "target" in out and times["points"] == 2000 and abs(times["modes"] - 15.0) < 1e-9
+
+
+def test_breakdown_benchmark_prints_times(capsys):
+    from bench_breakdown import main
+
+    times = main()
+    out = capsys.readouterr().out
+    print(out)
+    # speed is reported, not asserted; the breakdown tabulates the one public θ_D(T), bit for bit
+    assert "target" in out and times["breakdown_s"] > 0 and times["same_theta"] == 1.0
