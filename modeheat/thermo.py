@@ -183,15 +183,8 @@ def thermo(source, temperatures, *, per: str = "formula", molar_mass: float | No
         vibrational modes).
     """
     ms, T, r, k = _evaluate(source, temperatures, per, molar_mass)
-    theta = _lattice_theta(ms, T, r["cv_lattice"])
-    missing = np.count_nonzero(np.isnan(theta))
-    if missing:
-        why = "the source has no vibrational modes" if ms.modes <= 0 else "the lattice C_v cannot be inverted there"
-        warnings.warn(
-            f"no effective Debye temperature at {missing} of {T.size} temperature(s) ({why}): theta_D is NaN",
-            NoDebyeTemperatureWarning,
-            stacklevel=2,
-        )
+    theta = ms.effective_debye_temperature(T, r["cv_lattice"])
+    _warn_missing_theta(ms, theta, "theta_D is NaN", stacklevel=3)
     frame = pd.DataFrame(
         {"T": T, "Cv": k * r["cv"], "S": k * r["s"], "U": k * r["u"], "F": k * r["f"], "theta_D": theta}
     )
@@ -220,43 +213,16 @@ def thermo(source, temperatures, *, per: str = "formula", molar_mass: float | No
     return frame
 
 
-def _lattice_theta(ms: ModeSet, T: np.ndarray, cv_lattice: np.ndarray) -> np.ndarray:
-    """Effective Debye temperature of the vibrational part, with its limits at T = 0 and T → ∞."""
-    modes = ms.modes
-    theta = np.full(T.shape, np.nan)
-    if modes <= 0:
-        return theta
-    theta[T == 0] = ms.low_temperature_theta()
-    hot = T > 0
-    # Far above every mode 1 − C/C_max is lost to rounding: use the Thirring series.
-    classical = hot & (T > 20.0 * ms.theta_max)
-    if np.any(classical):
-        theta[classical] = _thirring_theta(ms, T[classical])
-    rest = hot & ~classical
-    c = cv_lattice[rest] / modes
-    x = special.debye_cv_inverse(c)
-    with np.errstate(divide="ignore"):
-        theta[rest] = T[rest] * x
-    return theta
-
-
-def _thirring_theta(ms: ModeSet, T: np.ndarray) -> np.ndarray:
-    """θ_D(T) for T ≫ every mode: match 1 − C/C_max of the Debye model to the moment series."""
-    _, coeffs = special._series_coefficients(3)
-    a = -coeffs[::-1][1:5]  # 1 − C_D/C_max = Σ a_j x^(2j), j = 1..4
-    moments = [ms.moment(2 * j) for j in range(1, 5)]
-    # 1 − C/C_max of the modes from their moments, by the series of one Einstein mode:
-    # 1 − C_E = x²/12 − x⁴/240 + x⁶/6048 − …
-    e = np.array([1 / 12, -1 / 240, 1 / 6048, -1 / 172800])
-    deficit = sum(e[j] * moments[j] / T ** (2 * j + 2) for j in range(4))
-    y = np.sqrt(deficit / a[0])
-    # A deficit that underflows (absurdly few modes) gives y = 0 and 0/0: NaN, which thermo warns about.
-    with np.errstate(invalid="ignore", divide="ignore"):
-        for _ in range(4):
-            g = sum(a[j] * y ** (2 * j + 2) for j in range(4)) - deficit
-            dg = sum((2 * j + 2) * a[j] * y ** (2 * j + 1) for j in range(4))
-            y = y - g / dg
-    return T * y
+def _warn_missing_theta(ms: ModeSet, theta: np.ndarray, what: str, stacklevel: int) -> None:
+    """One :class:`NoDebyeTemperatureWarning` for the NaN in a source's θ_D(T), saying why."""
+    missing = np.count_nonzero(np.isnan(theta))
+    if missing:
+        why = "the source has no vibrational modes" if ms.modes <= 0 else "the lattice C_v cannot be inverted there"
+        warnings.warn(
+            f"no effective Debye temperature at {missing} of {theta.size} temperature(s) ({why}): {what}",
+            NoDebyeTemperatureWarning,
+            stacklevel=stacklevel,
+        )
 
 
 def atoms_of_data(data, atoms: float | None = None) -> tuple[float, bool]:
@@ -309,26 +275,52 @@ def atoms_of_data(data, atoms: float | None = None) -> tuple[float, bool]:
     return float(atoms), True
 
 
-def effective_debye_temperature(temperatures, cv, *, atoms: float | None = None) -> np.ndarray:
-    """Effective Debye temperature θ_D(T) in K from a heat capacity.
+def effective_debye_temperature(first, second, /, *, atoms: float | None = None) -> np.ndarray:
+    """Effective Debye temperature θ_D(T) in K, of a source or of a heat capacity.
 
-    Solves C_v = 3·atoms·R·D(θ/T) at each temperature, where D is the Debye heat
-    capacity per mode (:func:`modeheat.engine.special.debye_cv`).  Where no θ exists —
-    C ≤ 0, or C ≥ 3·atoms·R — the result is NaN and one warning says why.
+    Two forms, one meaning — the θ whose Debye heat capacity equals the C_v at T:
+
+    * ``effective_debye_temperature(source, temperatures)``: θ_D(T) of a
+      :class:`~modeheat.Spectrum`, a model component, a mixture or a
+      :class:`~modeheat.engine.ModeSet`, from its lattice (vibrational) C_v —
+      electronic and two-level terms left out — with the exact limits: θ_D(0) from
+      the ω² branches (:meth:`~modeheat.engine.ModeSet.low_temperature_theta`) and,
+      far above every mode, the Thirring moment series (θ_∞² = (5/3)⟨θ²⟩).  The same
+      values as the ``theta_D`` column of :func:`thermo`, without the rest of the table.
+      NaN, with one warning, where none exists (no vibrational modes).
+    * ``effective_debye_temperature(temperatures, cv, atoms=...)``: solves C_v =
+      3·atoms·R·D(θ/T) at each temperature, where D is the Debye heat capacity per
+      mode (:func:`modeheat.engine.special.debye_cv`).  Where no θ exists — C ≤ 0, or
+      C ≥ 3·atoms·R — the result is NaN and one warning says why.
 
     Parameters
     ----------
-    temperatures : array_like — T in K, > 0
-    cv : array_like — C_v in J/(mol K) per mole of formula units, one per temperature (a
+    first : Spectrum, component, mixture or ModeSet — the source; or array_like, the
+        temperatures T in K (> 0) of the heat capacities `second`
+    second : array_like — for a source, temperatures T in K: 0, or 1e-12–1e12 K;
+        otherwise C_v in J/(mol K) per mole of formula units, one per temperature (a
         column of a :func:`~modeheat.read_heat_capacity` frame carries its atom count)
-    atoms : float, optional — atoms per formula unit; by default the count `cv`
-        carries, else 1 (:func:`atoms_of_data`)
+    atoms : float, optional — atoms per formula unit of a heat capacity; by default the
+        count `cv` carries, else 1 (:func:`atoms_of_data`).  A source knows its own:
+        given with one, it must equal it.
+
+    Returns
+    -------
+    numpy.ndarray
+        θ_D in K: for a source one per temperature (1-D), for heat capacities of the
+        broadcast shape of T and C_v.
 
     Raises
     ------
     InputError
-        Temperatures outside 1e-12–1e12 K (:data:`~modeheat.units.KELVIN_RANGE`),
-        non-finite heat capacities, lengths that differ, or atoms outside 1e-6–1e9.
+        Temperatures outside 1e-12–1e12 K (:data:`~modeheat.units.KELVIN_RANGE`; a
+        source also takes 0), non-finite heat capacities, lengths that differ, atoms
+        outside 1e-6–1e9 or differing from a source's.
+
+    Warns
+    -----
+    NoDebyeTemperatureWarning
+        Where θ_D is NaN.
 
     Notes
     -----
@@ -336,6 +328,14 @@ def effective_debye_temperature(temperatures, cv, *, atoms: float | None = None)
     dilatation term C_p − C_v and the electronic γT add to the lattice C_v.  Convert
     to C_v and remove the electronic term before asking for a Debye temperature.
     """
+    if isinstance(first, ModeSet) or hasattr(first, "modeset"):
+        ms = _modeset(first)
+        if atoms is not None and not (isinstance(atoms, numbers.Real) and math.isclose(float(atoms), ms.atoms)):
+            raise InputError(f"atoms: the source has {ms.atoms:g} atoms per formula unit, not {atoms!r}")
+        theta = ms.effective_debye_temperature(_temperatures(second))
+        _warn_missing_theta(ms, theta, "NaN returned", stacklevel=3)
+        return theta
+    temperatures, cv = first, second
     atoms, _ = atoms_of_data(cv, atoms)
     try:
         T, c = np.asarray(temperatures, dtype=float), np.asarray(cv, dtype=float)

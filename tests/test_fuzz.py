@@ -87,6 +87,7 @@ def test_spectrum_constructors_and_thermo(kind, x, y, low_t, atoms, T):
 @given(model=mixtures(), T=temperatures, n=st.sampled_from([-3, -2, 0, 1, 2]))
 def test_models_and_mixtures(model, T, n):
     outcome(lambda: mh.thermo(model(), T))
+    outcome(lambda: mh.effective_debye_temperature(model(), T))
     outcome(lambda: model().moment_debye_temperature(n))
     outcome(lambda: mh.zero_point_energy(model()))
 

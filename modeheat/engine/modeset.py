@@ -194,6 +194,57 @@ class ModeSet:
             return math.exp(1.0 / 3.0 + self.moment(0))
         return ((n + 3.0) / 3.0 * self.moment(n)) ** (1.0 / n)
 
+    def effective_debye_temperature(self, T: np.ndarray, cv_lattice: np.ndarray | None = None) -> np.ndarray:
+        """Effective Debye temperature θ_D(T) in K of the vibrational part, at each T ≥ 0 (K).
+
+        Inverts the lattice C_v with the Debye heat capacity of ``modes`` modes; the
+        limits are exact: θ_D(0) is :meth:`low_temperature_theta`, and far above every
+        mode (T > 20·θ_max, where 1 − C/C_max is lost to rounding) the Thirring moment
+        series takes over, whose leading term is θ_∞² = (5/3)⟨θ²⟩.  NaN where no θ
+        exists (no vibrational modes, or a lattice C_v that cannot be inverted).
+
+        Parameters
+        ----------
+        T : ndarray — temperatures in K, each 0 or > 0
+        cv_lattice : ndarray, optional — the lattice C/R at `T` (``evaluate(T)["cv_lattice"]``),
+            when the caller has it already; evaluated here otherwise
+        """
+        T = np.asarray(T, dtype=float)
+        theta = np.full(T.shape, np.nan)
+        modes = self.modes
+        if modes <= 0:
+            return theta
+        theta[T == 0] = self.low_temperature_theta()
+        classical = T > 20.0 * self.theta_max
+        if np.any(classical):
+            theta[classical] = self._thirring_theta(T[classical])
+        rest = (T > 0) & ~classical
+        if np.any(rest):
+            c = (self.evaluate(T[rest])["cv_lattice"] if cv_lattice is None else np.asarray(cv_lattice)[rest]) / modes
+            theta[rest] = T[rest] * special.debye_cv_inverse(c)
+        return theta
+
+    def _thirring_theta(self, T: np.ndarray) -> np.ndarray:
+        """θ_D(T) for T ≫ every mode: match 1 − C/C_max of the Debye model to the moment series."""
+        if "thirring" not in self._cache:
+            _, coeffs = special._series_coefficients(3)
+            # 1 − C_E = x²/12 − x⁴/240 + x⁶/6048 − … for one Einstein mode, summed over the modes by moments
+            e = (1 / 12, -1 / 240, 1 / 6048, -1 / 172800)
+            self._cache["thirring"] = (
+                -coeffs[::-1][1:5],  # 1 − C_D/C_max = Σ a_j y^(2j), j = 1..4
+                [e[j] * self.moment(2 * j + 2) for j in range(4)],
+            )
+        a, b = self._cache["thirring"]
+        deficit = sum(b[j] / T ** (2 * j + 2) for j in range(4))
+        y = np.sqrt(deficit / a[0])
+        # A deficit that underflows (absurdly few modes) gives y = 0 and 0/0: NaN, which callers report.
+        with np.errstate(invalid="ignore", divide="ignore"):
+            for _ in range(4):
+                g = sum(a[j] * y ** (2 * j + 2) for j in range(4)) - deficit
+                dg = sum((2 * j + 2) * a[j] * y ** (2 * j + 1) for j in range(4))
+                y = y - g / dg
+        return T * y
+
     # --- evaluation ------------------------------------------------------------
     def evaluate(self, T: np.ndarray) -> dict[str, np.ndarray]:
         """C/R, S/R, U/R [K], F/R [K] per formula unit, and the lattice part of C/R.

@@ -13,7 +13,7 @@ from scipy import optimize
 
 from ..engine.modeset import ModeSet
 from ..errors import InputError
-from ..thermo import CAUTION, atoms_of_data, effective_debye_temperature, thermo
+from ..thermo import CAUTION, _warn_missing_theta, atoms_of_data, effective_debye_temperature
 from ..units import R
 from ._points import _T3, _points
 from .low_t import LowTemperatureFit, low_temperature_fit
@@ -126,7 +126,8 @@ def debye_breakdown(
 
     For a spectrum, a component or a mixture the lattice (vibrational) C_v is used —
     electronic and two-level terms are left out — with θ_D(T) from
-    :func:`modeheat.thermo` and θ_D(0) from the low-frequency branches
+    :func:`~modeheat.effective_debye_temperature` (the mode set's, evaluated once on
+    the grid) and θ_D(0) from the low-frequency branches
     (:meth:`ModeSet.low_temperature_theta`); crossings are located to ~1e-10 by root
     finding between the temperatures examined.  For measured data the electronic γT
     is subtracted first — `gamma` if given, else γ of `low_t` (a
@@ -171,7 +172,7 @@ def debye_breakdown(
     ms = get()
     if atoms is not None and not math.isclose(float(atoms), ms.atoms):
         raise InputError(f"atoms: the source has {ms.atoms:g} atoms per formula unit, not {atoms!r}")
-    return _breakdown_of_model(source, ms, tolerance, temperatures)
+    return _breakdown_of_model(ms, tolerance, temperatures)
 
 
 def _grid(ms: ModeSet, temperatures) -> np.ndarray:
@@ -202,22 +203,16 @@ def _first_exit(inside: np.ndarray) -> int | None:
     return int(out[0]) if out.size else None
 
 
-def _breakdown_of_model(source, ms: ModeSet, tolerance: float, temperatures) -> DebyeBreakdown:
+def _breakdown_of_model(ms: ModeSet, tolerance: float, temperatures) -> DebyeBreakdown:
     if ms.modes <= 0:
         raise InputError("the source has no vibrational modes: there is no Debye temperature")
     theta0 = ms.low_temperature_theta()
     T = _grid(ms, temperatures)
     notes = ["lattice (vibrational) C_v of the model; electronic and two-level terms left out"]
     limit = _T3 * (ms.modes / 3.0) * R / theta0**3 if 0 < theta0 < math.inf else math.nan
-
-    def ratio(t):
-        t = np.atleast_1d(np.asarray(t, dtype=float))
-        return R * ms.evaluate(t)["cv_lattice"] / t**3 / limit
-
-    def theta_of(t):
-        return thermo(source, np.atleast_1d(t))["theta_D"].to_numpy()
-
-    theta = theta_of(T)
+    cv_grid = ms.evaluate(T)["cv_lattice"]
+    theta = ms.effective_debye_temperature(T, cv_grid)
+    _warn_missing_theta(ms, theta, "theta_D is NaN in the table", stacklevel=4)
     if not 0 < theta0 < math.inf:
         notes.append(
             "no ω² branch at low frequency (a lower-dimensional branch or a gap): C/T³ has no finite "
@@ -227,10 +222,26 @@ def _breakdown_of_model(source, ms: ModeSet, tolerance: float, temperatures) -> 
         return DebyeBreakdown(
             tolerance, theta0, math.nan, (math.nan, math.nan), (float(T[0]), float(T[-1])), None, tuple(notes), table
         )
-    rat = ratio(T)
-    t3 = _crossing(lambda t: abs(ratio(t)[0] - 1.0) - tolerance, T, np.abs(rat - 1.0) <= tolerance)
-    inside = np.abs(theta / theta0 - 1.0) <= tolerance
-    hi = _crossing(lambda t: abs(theta_of(t)[0] / theta0 - 1.0) - tolerance, T, inside)
+    # Both root searches evaluate the lattice C_v one temperature at a time, at the grid's
+    # own points first: one memo, seeded with the grid, serves both.
+    known = dict(zip(T.tolist(), cv_grid.tolist()))
+
+    def cv_at(t: float) -> float:
+        t = float(t)
+        if t not in known:
+            known[t] = float(ms.evaluate(np.array([t]))["cv_lattice"][0])
+        return known[t]
+
+    def ratio_excess(t: float) -> float:
+        return abs(R * cv_at(t) / t**3 / limit - 1.0) - tolerance
+
+    def theta_excess(t: float) -> float:
+        value = ms.effective_debye_temperature(np.array([t]), np.array([cv_at(t)]))[0]
+        return abs(value / theta0 - 1.0) - tolerance
+
+    rat = R * cv_grid / T**3 / limit
+    t3 = _crossing(ratio_excess, T, np.abs(rat - 1.0) - tolerance)
+    hi = _crossing(theta_excess, T, np.abs(theta / theta0 - 1.0) - tolerance)
     theta_range = (float(T[0]), hi) if not math.isnan(hi) else (math.nan, math.nan)
     table = pd.DataFrame({"T": T, "theta_D": theta, "C_T3_ratio": rat})
     return DebyeBreakdown(
@@ -238,16 +249,16 @@ def _breakdown_of_model(source, ms: ModeSet, tolerance: float, temperatures) -> 
     )
 
 
-def _crossing(excess, T: np.ndarray, inside: np.ndarray) -> float:
-    """The temperature where a leading run of `inside` ends, refined with brentq on `excess` (> 0 outside)."""
-    if not inside[0]:
+def _crossing(excess, T: np.ndarray, grid_excess: np.ndarray) -> float:
+    """Where a leading run of `grid_excess` ≤ 0 ends (NaN counts as outside), refined with
+    brentq on `excess`, the same quantity at any temperature (> 0 outside)."""
+    k = _first_exit(grid_excess <= 0)
+    if k == 0:
         return math.nan
-    k = _first_exit(inside)
     if k is None:
         return math.inf
-    a, b = excess(T[k - 1]), excess(T[k])
-    if not (a <= 0 < b):  # the grid and the one-point evaluations disagree on the side: interpolate
-        return _interpolated_exit(T[k - 1 : k + 1], np.array([min(a, 0.0), max(b, 1e-300)]))
+    if not math.isfinite(grid_excess[k]):
+        return float(T[k - 1])  # no θ_D past the end to refine toward
     return float(optimize.brentq(excess, T[k - 1], T[k], xtol=1e-12 * T[k], rtol=1e-12))
 
 

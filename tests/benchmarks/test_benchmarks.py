@@ -66,3 +66,13 @@ def test_progress_benchmark_prints_costs(capsys):
     print(out)
     # every cancelled fit raised Cancelled; the costs are reported, not asserted
     assert "ratio" in out and result["cancelled"] == 3
+
+
+def test_breakdown_benchmark_prints_times(capsys):
+    from bench_breakdown import main
+
+    times = main()
+    out = capsys.readouterr().out
+    print(out)
+    # speed is reported, not asserted; the breakdown tabulates the one public θ_D(T), bit for bit
+    assert "target" in out and times["breakdown_s"] > 0 and times["same_theta"] == 1.0
