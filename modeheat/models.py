@@ -787,6 +787,8 @@ class Mixture(Documented):
         if not vib:
             raise InputError("the mixture has no vibrational modes to render")
         edges = np.unique(np.concatenate([[0.0]] + [c._edges() for c in vib]))
+        # Edges of different components a rounding apart would merge in another unit.
+        edges = edges[np.concatenate(([True], np.diff(edges) > 1e-12 * edges[1:]))]
         counts = {c.name: np.diff(c.cumulative(edges)) for c in vib}
         total = sum(counts.values())
         atoms = self.atoms if self.atoms is not None else self.modes / 3.0
