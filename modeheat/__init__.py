@@ -35,6 +35,7 @@ __all__ = [
     "Electronic",
     "Schottky",
     "Dilatation",
+    "PhononDOS",
     "ModeCountWarning",
     # thermodynamics of any source
     "thermo",
@@ -94,6 +95,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
         "Electronic",
         "Mixture",
         "ModeCountWarning",
+        "PhononDOS",
         "Schottky",
         "SineChain",
         "solid",

@@ -8,10 +8,13 @@ formula unit the component carries):
 - :class:`Einstein` — all modes at one frequency;
 - :class:`Band` — a flat optical continuum between two frequencies;
 - :class:`Electronic` — the γT term of conduction electrons (no vibrational modes);
-- :class:`Schottky` — a two-level anomaly (no vibrational modes).
+- :class:`Schottky` — a two-level anomaly (no vibrational modes);
+- :class:`PhononDOS` — a computed or measured :class:`~modeheat.Spectrum` as a term,
+  with a frequency scale factor and its mode count.
 
-Components add with ``+`` into a :class:`Mixture`; :func:`solid` builds the usual
-solid (3 acoustic + 3(atoms − 1) optical modes).  Every component and mixture works
+Components add with ``+`` into a :class:`Mixture` (a :class:`~modeheat.Spectrum` in a
+sum becomes a :class:`PhononDOS` term: ``dos + Electronic(5e-5)``); :func:`solid` builds
+the usual solid (3 acoustic + 3(atoms − 1) optical modes).  Every component and mixture works
 with :func:`modeheat.thermo` like a :class:`~modeheat.Spectrum`, and
 ``.spectrum()`` renders the vibrational part as one.
 
@@ -36,7 +39,7 @@ from scipy import integrate
 from ._document import Documented
 from .cp_cv import cp_from_cv
 from .engine import special
-from .engine.modeset import DebyeBranch, ModeSet
+from .engine.modeset import DebyeBranch, ModeSet, ScaledModes
 from .errors import InputError, ModeheatWarning
 from .spectrum import Spectrum
 from .units import R, check_kelvin, check_unit, kelvin_per
@@ -49,6 +52,7 @@ __all__ = [
     "Band",
     "Electronic",
     "Schottky",
+    "PhononDOS",
     "Mixture",
     "ModeCountWarning",
     "solid",
@@ -296,6 +300,8 @@ class Component(Documented):
         return Mixture((self,)) + other
 
     def __radd__(self, other) -> "Mixture":
+        if isinstance(other, Spectrum):  # spectrum + component
+            return Mixture((PhononDOS(other), self))
         if other == 0:  # sum([...]) starts from 0
             return Mixture((self,))
         return NotImplemented
@@ -532,6 +538,92 @@ class Schottky(Component):
         return [], [], [], [_SchottkyTerm(self.delta, self.g_ratio, self.n)]
 
 
+def _linear_cumulative(x: np.ndarray, y: np.ndarray, at: np.ndarray) -> np.ndarray:
+    """∫ y dx from x[0] to each point of `at` for y linear between samples (0 below x[0])."""
+    h = np.diff(x)
+    cum = np.concatenate(([0.0], np.cumsum(0.5 * h * (y[:-1] + y[1:]))))
+    k = np.clip(np.searchsorted(x, at, side="right") - 1, 0, x.size - 2)
+    d = np.clip(at - x[k], 0.0, h[k])
+    slope = (y[k + 1] - y[k]) / h[k]
+    return cum[k] + y[k] * d + 0.5 * slope * d * d
+
+
+@dataclass(frozen=True)
+class PhononDOS(Component):
+    """A computed or measured spectrum as a term of a mixture, with a frequency scale.
+
+    A computed DOS is often a few per cent too stiff or soft: every frequency is
+    multiplied by `scale`, and a fit can vary it (``"<name>.scale"``) like a Debye θ.
+    The term is evaluated as the unscaled spectrum at T/scale (an exact identity of the
+    kernels of x = ħω/kT; :class:`~modeheat.engine.ScaledModes`), with the spectrum's own
+    low-temperature continuation, scaled the same way.  ``spectrum + component``,
+    ``component + spectrum``, :class:`Mixture` and :func:`solid` wrap a
+    :class:`~modeheat.Spectrum` in this term on their own.
+
+    Parameters
+    ----------
+    spectrum : Spectrum — the density of states, per formula unit
+    scale : float — frequency scale factor (dimensionless, > 0; 1 = as given)
+    modes : float, optional — vibrational modes per formula unit the term carries
+        (default: the spectrum's 3·atoms); another count scales the density
+    name : str, optional — default "dos"
+    """
+
+    spectrum: Spectrum
+    scale: float = 1.0
+    modes: float | None = None
+    name: str | None = None
+    kind: ClassVar[str] = "dos"
+    _continuous: ClassVar[tuple[str, ...]] = ("scale",)
+
+    _checks: ClassVar[dict] = {"scale": _positive, "modes": _non_negative}
+
+    def __post_init__(self):
+        if not isinstance(self.spectrum, Spectrum):
+            raise InputError(f"{self.kind}: spectrum must be a Spectrum, not {type(self.spectrum).__name__}")
+        if self.modes is None:
+            object.__setattr__(self, "modes", self.spectrum.modes)
+        super().__post_init__()
+        # the scaled modes must stay within the temperature equivalents the engine takes
+        check_kelvin(f"{self.kind}: scale × the highest mode", self.scale * self.spectrum.modeset().theta_max)
+
+    def __hash__(self) -> int:
+        # by value, like equality (a Spectrum compares by value but is not hashable)
+        sp = self.spectrum
+        return hash((self.kind, self.scale, self.modes, self.name, sp.atoms, sp.unit, sp.frequency.tobytes()))
+
+    @property
+    def parameters(self) -> dict[str, float]:
+        """``scale`` and ``modes`` (the spectrum itself is not a number)."""
+        return {"scale": float(self.scale), "modes": float(self.modes)}
+
+    def _parts(self):
+        base = self.spectrum.modeset()
+        return [], [], [ScaledModes(base, self.scale, self.modes / base.modes)], []
+
+    def _kelvin_samples(self) -> tuple[np.ndarray, np.ndarray]:
+        """The stored density as θ [K] (unscaled) and modes per K."""
+        k = kelvin_per(self.spectrum.unit)
+        return self.spectrum.frequency * k, self.spectrum.density / k
+
+    def cumulative(self, theta):
+        # The density as stored, linear between samples (as views draw it), scaled to
+        # exactly the term's modes.
+        x, y = self._kelvin_samples()
+        at = np.asarray(theta, dtype=float) / self.scale
+        total = float(_linear_cumulative(x, y, x[-1:])[0])
+        return self.modes / total * _linear_cumulative(x, y, at)
+
+    def _edges(self):
+        x, _ = self._kelvin_samples()
+        return np.union1d(self.scale * x, self.scale * x[-1] * _RENDER_FRACTIONS)
+
+
+def _as_component(c) -> Component:
+    """A component as given; a Spectrum wrapped as a :class:`PhononDOS` term."""
+    return PhononDOS(c) if isinstance(c, Spectrum) else c
+
+
 def _mode_count(c: Component) -> float:
     return float(c.modes)
 
@@ -544,7 +636,8 @@ class Mixture(Documented):
 
     Parameters
     ----------
-    components : iterable of Component — repeated names get ``_2``, ``_3`` … suffixes
+    components : iterable of Component — repeated names get ``_2``, ``_3`` … suffixes;
+        a :class:`~modeheat.Spectrum` becomes a :class:`PhononDOS` term
     atoms : float, optional — atoms per formula unit; when given, the mode count must
         equal 3·atoms
     check : {"error", "warn"} — what a mode-count mismatch does
@@ -558,7 +651,7 @@ class Mixture(Documented):
     _tol: ClassVar[float] = 1e-9
 
     def __post_init__(self):
-        comps = tuple(self.components)
+        comps = tuple(_as_component(c) for c in self.components)
         for c in comps:
             if not isinstance(c, Component):
                 raise InputError(f"a mixture holds model components, not {type(c).__name__}")
@@ -587,13 +680,15 @@ class Mixture(Documented):
                 warnings.warn(message, ModeCountWarning, stacklevel=3)
 
     def __add__(self, other) -> "Mixture":
-        if isinstance(other, Component):
+        if isinstance(other, (Component, Spectrum)):
             return Mixture(self.components + (other,))
         if isinstance(other, Mixture):
             return Mixture(self.components + other.components)
         return NotImplemented
 
     def __radd__(self, other):
+        if isinstance(other, Spectrum):  # spectrum + mixture
+            return Mixture((other,) + self.components)
         if other == 0:
             return self
         return NotImplemented
@@ -692,6 +787,8 @@ class Mixture(Documented):
         if not vib:
             raise InputError("the mixture has no vibrational modes to render")
         edges = np.unique(np.concatenate([[0.0]] + [c._edges() for c in vib]))
+        # Edges of different components a rounding apart would merge in another unit.
+        edges = edges[np.concatenate(([True], np.diff(edges) > 1e-12 * edges[1:]))]
         counts = {c.name: np.diff(c.cumulative(edges)) for c in vib}
         total = sum(counts.values())
         atoms = self.atoms if self.atoms is not None else self.modes / 3.0
@@ -725,17 +822,22 @@ def solid(
     Parameters
     ----------
     atoms : float — atoms per formula unit
-    acoustic : Component — Debye or SineChain; given 3 modes
-    optical : iterable of Component — Einstein or Band terms sharing 3(atoms − 1) modes
+    acoustic : Component or Spectrum — Debye, SineChain or a spectrum of the acoustic
+        branches (a :class:`PhononDOS` term); given 3 modes
+    optical : iterable of Component or Spectrum — Einstein, Band or spectrum terms
+        sharing 3(atoms − 1) modes
     split : iterable of float, optional — relative shares of the optical modes
         (default: equal)
     extras : iterable of Component — non-vibrational terms (Electronic, Schottky)
     name : str, optional
     """
     atoms = _positive("solid", "atoms", atoms)
-    optical = list(optical)
-    if not isinstance(acoustic, (Debye, SineChain)):
-        raise InputError(f"solid: the acoustic part must be a Debye or SineChain component, not {acoustic!r}")
+    acoustic = _as_component(acoustic)
+    optical = [_as_component(c) for c in optical]
+    if not isinstance(acoustic, (Debye, SineChain, PhononDOS)):
+        raise InputError(
+            f"solid: the acoustic part must be a Debye, SineChain or spectrum (PhononDOS) term, not {acoustic!r}"
+        )
     for c in optical:
         if not isinstance(c, Component) or "modes" not in {f.name for f in dataclasses.fields(c)}:
             raise InputError(f"solid: optical parts must be vibrational components (Einstein, Band …), not {c!r}")

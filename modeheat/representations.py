@@ -29,7 +29,7 @@ from scipy.special import ndtr
 from .engine import special
 from .engine.modeset import ModeSet
 from .errors import InputError
-from .models import Band, Component, Einstein, Mixture
+from .models import Band, Component, Einstein, Mixture, _linear_cumulative
 from .spectrum import Spectrum
 from .thermo import _modeset, _scale, _temperatures, atoms_of_data, effective_debye_temperature, thermo
 from .units import R, check_unit, kelvin_per
@@ -313,16 +313,6 @@ def _check_names(names) -> None:
         raise InputError(f"a component or partial named {clash[0]!r} would collide with a column; rename it")
 
 
-def _piecewise_linear_cumulative(x: np.ndarray, y: np.ndarray, at: np.ndarray) -> np.ndarray:
-    """∫ y dx from x[0] to each point of `at` for y linear between samples (0 below x[0])."""
-    h = np.diff(x)
-    cum = np.concatenate(([0.0], np.cumsum(0.5 * h * (y[:-1] + y[1:]))))
-    k = np.clip(np.searchsorted(x, at, side="right") - 1, 0, x.size - 2)
-    d = np.clip(at - x[k], 0.0, h[k])
-    slope = (y[k + 1] - y[k]) / h[k]
-    return cum[k] + y[k] * d + 0.5 * slope * d * d
-
-
 def _binned_spectrum(sp: Spectrum, unit: str, n: int, kpu: float):
     # The density as a view draws it: linear between the stored samples, rebinned exactly.
     f = sp.frequency * kelvin_per(sp.unit) / kpu
@@ -330,7 +320,7 @@ def _binned_spectrum(sp: Spectrum, unit: str, n: int, kpu: float):
     columns = {"total": sp.density, **sp.partials}
     _check_names(sp.partials)
     r = kelvin_per(sp.unit) / kpu
-    raw = {k: np.diff(_piecewise_linear_cumulative(f, v / r, edges)) for k, v in columns.items()}
+    raw = {k: np.diff(_linear_cumulative(f, v / r, edges)) for k, v in columns.items()}
     # The engine integrates g/ω² piecewise linearly (and continues the bottom), the
     # trapezoid rule differs by a fraction of a per cent: scale to the exact mode count.
     factor = sp.modes / float(raw["total"].sum())

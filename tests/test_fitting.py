@@ -350,7 +350,7 @@ def test_fit_errors():
         fit(START, data.rename(columns={"C": "Cp"}))
     with pytest.raises(InputError, match="more than one Dilatation"):
         fit(START + Dilatation(1e-6) + Dilatation(1e-6), data)
-    with pytest.raises(InputError, match="model must be a component or a mixture"):
+    with pytest.raises(InputError, match="model must be a component, a mixture or a spectrum"):
         fit("Debye", data)
 
 

@@ -92,6 +92,28 @@ def test_models_and_mixtures(model, T, n):
     outcome(lambda: mh.zero_point_energy(model()))
 
 
+@lru_cache(maxsize=None)
+def _small_spectrum(low_t) -> mh.Spectrum:
+    """An invented ω² density with a hump, 1 atom."""
+    nu = np.linspace(0.0, 6.0, 61)
+    return mh.Spectrum(nu, nu**2 * (1.0 + np.exp(-((nu - 4.0) ** 2))), atoms=1, low_t=low_t)
+
+
+@examples(300)
+@given(
+    low_t=st.sampled_from(["auto", "fit", "off", 250.0]),
+    scale=numbers,
+    modes=st.one_of(st.none(), numbers),
+    T=temperatures,
+    n=st.sampled_from([-3, -2, 0, 2]),
+)
+def test_spectrum_terms(low_t, scale, modes, T, n):
+    term = lambda: mh.PhononDOS(_small_spectrum(low_t), scale=scale, modes=modes)  # noqa: E731
+    outcome(lambda: mh.thermo(term() + mh.Electronic(1e-3), T))
+    outcome(lambda: term().moment_debye_temperature(n))
+    outcome(lambda: mh.representations.plot_dos(term(), points=50))
+
+
 @examples(400)
 @given(
     T=st.lists(numbers, min_size=0, max_size=6),

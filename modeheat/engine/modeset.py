@@ -30,7 +30,7 @@ from scipy import fft as _fft
 
 from . import special
 
-__all__ = ["ModeSet", "Branch", "DebyeBranch", "Extra"]
+__all__ = ["ModeSet", "Branch", "DebyeBranch", "Extra", "ScaledModes"]
 
 DELTA = 1.0 / 256.0  # ln-grid step for θ and T
 SPREAD = 6  # points per node on the ln θ grid
@@ -117,6 +117,59 @@ class DebyeBranch:
 
     def low_t(self):
         return self.dim, self.modes / self.theta**self.dim
+
+
+@dataclass(frozen=True, eq=False)
+class ScaledModes:
+    """A whole mode set as one branch, every temperature equivalent × `scale` and every
+    mode count × `factor` (a computed spectrum a few per cent too stiff or soft).
+
+    Every kernel depends on θ/T alone, so θ → s·θ (a shift by ln s on the ln θ grid) is
+    the unscaled set at T/s: C(T; s) = C₀(T/s), U_th(T; s) = s·U_th,0(T/s) and
+    F_th(T; s) = s·F_th,0(T/s), hence U_th/(RT) and F_th/(RT) are those of T/s too; the
+    zero point scales as s and Σ modes·⟨θⁿ⟩ as sⁿ (n = 0: + modes·ln s).  Branches (the
+    ω² continuation) scale the same way.  Evaluating the base at T/s reuses its cached
+    node spreading, so any scale costs one correlation, like a Debye branch's θ.
+
+    Parameters
+    ----------
+    base : ModeSet — the unscaled modes (its extras, if any, are not part of the branch)
+    scale : float — frequency scale factor s > 0
+    factor : float — mode-count factor ≥ 0
+    """
+
+    base: "ModeSet"
+    scale: float = 1.0
+    factor: float = 1.0
+
+    @property
+    def modes(self) -> float:
+        return self.factor * self.base.modes
+
+    @property
+    def theta_max(self) -> float:
+        return self.scale * self.base.theta_max
+
+    def terms(self, T):
+        cv, e, f = self.base.thermal(T / self.scale)
+        return self.factor * cv, self.factor * e, self.factor * f
+
+    def zero_point(self) -> float:
+        return self.factor * self.scale * self.base.zero_point()
+
+    def moment_sum(self, n: float) -> float:
+        total = self.base.modes * self.base.moment(n)  # Σ modes·⟨θⁿ⟩ of the base
+        if n == 0:
+            return self.factor * (total + self.base.modes * math.log(self.scale))
+        return self.factor * self.scale**n * total
+
+    def low_t(self):
+        # The base's low-frequency laws (dim, modes/θ^dim): the lowest power dominates.
+        laws = [law for law in (b.low_t() for b in self.base.branches) if law is not None and law[1] > 0]
+        if not laws:
+            return None
+        dim = min(d for d, _ in laws)
+        return dim, self.factor * sum(a for d, a in laws if d == dim) / self.scale**dim
 
 
 @dataclass(frozen=True, eq=False)
@@ -261,12 +314,7 @@ class ModeSet:
         hot = T > 0
         Th = T[hot]
         if Th.size:
-            bc, be, bf = np.zeros_like(Th), np.zeros_like(Th), np.zeros_like(Th)
-            for branch in self.branches:
-                dc, de, df = branch.terms(Th)
-                bc, be, bf = bc + dc, be + de, bf + df
-            c1, e1, f1 = self._nodes(Th, bc)
-            c1, e1, f1 = c1 + bc, e1 + be, f1 + bf
+            c1, e1, f1 = self.thermal(Th)
             cv[hot], e[hot], f[hot] = c1, e1, f1
             s[hot] = e1 - f1
         u0 = self.zero_point()
@@ -285,6 +333,16 @@ class ModeSet:
                 out["u"][hot] += ue
                 out["f"][hot] += fe
         return {k: v.reshape(shape) for k, v in out.items()}
+
+    def thermal(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """C/R, U_th/(RT) and F_th/(RT) of the vibrational modes (nodes and branches)
+        per formula unit at T > 0 (K, 1-D); the zero point and the extras excluded."""
+        bc, be, bf = np.zeros_like(T), np.zeros_like(T), np.zeros_like(T)
+        for branch in self.branches:
+            dc, de, df = branch.terms(T)
+            bc, be, bf = bc + dc, be + de, bf + df
+        c1, e1, f1 = self._nodes(T, bc)
+        return c1 + bc, e1 + be, f1 + bf
 
     # --- node sums -----------------------------------------------------------------
     def _nodes(self, T: np.ndarray, branch_cv: np.ndarray):

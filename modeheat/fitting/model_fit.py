@@ -16,6 +16,7 @@ from .._document import Documented
 from ..errors import InputError, ModeheatWarning
 from ..models import Component, Dilatation, Mixture
 from ..progress import Progress, ProgressCallback, report
+from ..spectrum import Spectrum
 from ..thermo import CAUTION, atoms_of_data, heat_capacity
 from ._points import _check_window, _data_sets, _points, _window_text
 from .quality import FitQuality, _quality
@@ -29,9 +30,9 @@ class FitWarning(ModeheatWarning):
 
 # --- model fits -------------------------------------------------------------------------------------
 # Typical sizes: the scale of a parameter that starts at 0 (least_squares works on value/scale).
-_TYPICAL = {"theta": 100.0, "theta_low": 100.0, "theta_high": 100.0, "delta": 10.0, "gamma": 1e-3, "A": 1e-5}
+_TYPICAL = {"scale": 1.0, "theta": 100.0, "theta_low": 100.0, "theta_high": 100.0, "delta": 10.0, "gamma": 1e-3, "A": 1e-5}
 # Parameters that must stay strictly positive (the others may reach 0).
-_STRICT = {"theta", "theta_high", "delta", "g_ratio"}
+_STRICT = {"scale", "theta", "theta_high", "delta", "g_ratio"}
 _UNITS = {
     "theta": "K",
     "theta_low": "K",
@@ -42,6 +43,7 @@ _UNITS = {
     "modes": "",
     "n": "",
     "g_ratio": "",
+    "scale": "",
 }
 _LOSSES = ("linear", "soft_l1", "huber", "cauchy", "arctan")
 _HUBER_K = 1.345  # the classic Huber constant: 95 % efficiency on Gaussian residuals
@@ -51,9 +53,9 @@ _PENALTY = 1e6  # residual returned where a trial parameter set is not a valid m
 def _as_mixture(model) -> Mixture:
     if isinstance(model, Mixture):
         return model
-    if isinstance(model, Component):
-        return Mixture((model,))
-    raise InputError(f"model must be a component or a mixture, not {type(model).__name__}")
+    if isinstance(model, (Component, Spectrum)):
+        return Mixture((model,))  # a spectrum becomes a PhononDOS term
+    raise InputError(f"model must be a component, a mixture or a spectrum, not {type(model).__name__}")
 
 
 def _model_cp(mixture: Mixture, T: np.ndarray) -> np.ndarray:
@@ -328,8 +330,9 @@ def fit(
 
     Parameters
     ----------
-    model : Component or Mixture — the starting point; a single component is wrapped
-        in a mixture
+    model : Component, Mixture or Spectrum — the starting point; a single component is
+        wrapped in a mixture, a spectrum in a :class:`~modeheat.PhononDOS` term (whose
+        frequency scale ``"dos.scale"`` is then varied by default)
     data : DataFrame or list of DataFrames — ``T`` [K], ``C`` [J/(mol K)] and optionally
         ``sigma``; several sets (e.g. a low-T and a high-T run) are fitted jointly, each
         with its own sigma (all sets weighted, or none)
@@ -342,7 +345,7 @@ def fit(
     tmin, tmax : float, optional — fit window in K, applied to every data set
     bounds : mapping, optional — ``{key: (low, high)}`` for plain (not mode-count)
         parameters, in their own units; by default every parameter is kept ≥ 0, and θ,
-        Δ and g_ratio > 0
+        Δ, g_ratio and a spectrum's scale > 0
     loss : {"linear", "soft_l1", "huber", "cauchy", "arctan"} — passed to least_squares;
         the robust ones down-weight points whose residual exceeds `f_scale`
     fixed : mapping or iterable of str, optional — parameters to hold: a mapping sets

@@ -11,7 +11,7 @@ Document format (schema 1)
 --------------------------
 Every document is a JSON object with ``"kind"`` (what it holds: ``"spectrum"``,
 ``"debye"``, ``"sinechain"``, ``"einstein"``, ``"band"``, ``"electronic"``,
-``"schottky"``, ``"dilatation"``, ``"mixture"``, ``"table"``, ``"fit_result"``,
+``"schottky"``, ``"dilatation"``, ``"dos"`` (a spectrum as a mixture's term), ``"mixture"``, ``"table"``, ``"fit_result"``,
 ``"fit_quality"``, ``"low_temperature_fit"``), ``"schema"`` (the format version, 1)
 and the object's fields; objects inside objects (a mixture's components, a fit's model
 and tables) are documents of their own.
@@ -60,7 +60,7 @@ from .columns import _read_text
 from .tables import write_text_file
 from ..errors import InputError, ModeheatError
 from ..fitting import FitQuality, FitResult, LowTemperatureFit
-from ..models import Band, Component, Debye, Dilatation, Einstein, Electronic, Mixture, Schottky, SineChain
+from ..models import Band, Component, Debye, Dilatation, Einstein, Electronic, Mixture, PhononDOS, Schottky, SineChain
 from ..spectrum import LOW_T_CHOICES, Spectrum
 from ..spectrum.continuation import _check_low_t, _Continuation
 from ..thermo import CAUTION
@@ -356,6 +356,13 @@ def _component_codecs(cls: type) -> dict[str, Any]:
 
 for _cls in (Debye, SineChain, Einstein, Band, Electronic, Schottky, Dilatation):
     _register_dataclass(_cls.kind, _cls, _component_codecs(_cls))
+
+# A spectrum term holds its spectrum as a document of its own (the "spectrum" kind below).
+_register_dataclass(
+    PhononDOS.kind,
+    PhononDOS,
+    {"spectrum": _Object(Spectrum), "scale": NUMBER, "modes": NUMBER, "name": _Optional(STR)},
+)
 
 _register_dataclass(
     "mixture",

@@ -37,6 +37,7 @@ def test_fitting_benchmark_prints_times(capsys):
     assert "target" in out and times["fit_s"] > 0
     # the benchmark's fit must be right, whatever its speed: truth within 4σ (seeded data)
     assert times["worst_sigma"] < 4
+    assert "DOS/Debye" in out and times["dos_scale_sigma"] < 4
 
 
 def test_startup_benchmark_prints_ratio(capsys):
