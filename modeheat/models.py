@@ -183,7 +183,7 @@ class _BandBranch:
             return self.modes * math.log(b / a) / (b - a)
         return self.modes * (b ** (n + 1) - a ** (n + 1)) / ((n + 1) * (b - a))
 
-    def low_t(self):
+    def low_frequency_law(self):
         return (1, self.modes / self.theta_high) if self.theta_low == 0 else None
 
 
@@ -238,7 +238,7 @@ class _SineBranch:
             return self.modes * (math.log(self.theta) + _sine_moment(self.dim, 0))
         return self.modes * self.theta**n * _sine_moment(self.dim, n)
 
-    def low_t(self):
+    def low_frequency_law(self):
         # small k: ω ≈ θ·πs/2, a Debye branch with cut-off πθ/2
         return self.dim, self.modes / (0.5 * math.pi * self.theta) ** self.dim
 
@@ -329,8 +329,9 @@ class Component(Documented):
         """(node θ list, node weight list, branches, extras)."""
         raise NotImplementedError
 
-    def modeset(self, atoms: float | None = None) -> ModeSet:
-        return Mixture((self,), atoms=atoms).modeset()
+    def modeset(self) -> ModeSet:
+        """The evaluation engine's view of this component (one signature for every source)."""
+        return Mixture((self,)).modeset()
 
     def spectrum(self, **kw) -> Spectrum:
         """The vibrational part rendered as a :class:`~modeheat.Spectrum` (see :meth:`Mixture.spectrum`)."""
@@ -763,7 +764,7 @@ class Mixture(Documented):
         ms = self.modeset()
         if ms.modes <= 0:
             raise InputError("the mixture has no vibrational modes, so it has no moment Debye temperature")
-        return ms.moment_theta(n)
+        return ms.moment_debye_temperature(n)
 
     def cumulative(self, theta) -> np.ndarray:
         """Vibrational modes per formula unit below θ (K)."""

@@ -55,7 +55,7 @@ def _theta_zero(source, ms: ModeSet) -> float:
         return math.nan
     if isinstance(source, Spectrum):
         return source.moment_debye_temperature(-3)  # honours a continuation that is off
-    return ms.low_temperature_theta()
+    return ms.theta_D0
 
 
 def _amount(per: str) -> str:

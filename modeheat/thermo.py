@@ -284,7 +284,7 @@ def effective_debye_temperature(first, second, /, *, atoms: float | None = None)
       :class:`~modeheat.Spectrum`, a model component, a mixture or a
       :class:`~modeheat.engine.ModeSet`, from its lattice (vibrational) C_v —
       electronic and two-level terms left out — with the exact limits: θ_D(0) from
-      the ω² branches (:meth:`~modeheat.engine.ModeSet.low_temperature_theta`) and,
+      the ω² branches (:attr:`~modeheat.engine.ModeSet.theta_D0`) and,
       far above every mode, the Thirring moment series (θ_∞² = (5/3)⟨θ²⟩).  The same
       values as the ``theta_D`` column of :func:`thermo`, without the rest of the table.
       NaN, with one warning, where none exists (no vibrational modes).

@@ -119,8 +119,8 @@ def test_data_subtract_a_fitted_gamma_and_say_so():
 def test_data_with_a_given_low_t_fit_or_gamma():
     data = _model_data()
     low_t = low_temperature_fit(data, tmax=6.0)
-    a = debye_breakdown(data, low_t=low_t)
-    b = debye_breakdown(data, low_t=low_t, gamma=1e-3)
+    a = debye_breakdown(data, low_t_fit=low_t)
+    b = debye_breakdown(data, low_t_fit=low_t, gamma=1e-3)
     assert a.t3_below == pytest.approx(b.t3_below, rel=1e-4)
     assert b.gamma_subtracted == 1e-3 and any("given" in note for note in b.notes)
 

@@ -385,7 +385,7 @@ def test_bad_parameters_are_input_errors():
         dispersion(FCC, ["Γ", "Q"])
     with pytest.raises(InputError, match="species"):
         DiatomicChain(1.0, 2.0, 3.0, 4.0, species=("A", "A"))
-    with pytest.raises(TypeError):
+    with pytest.raises(InputError, match="CubicLattice or RockSalt"):  # a chain has no 3-D mesh
         dos(CHAIN, 8)
     with warnings.catch_warnings():
         warnings.simplefilter("error")

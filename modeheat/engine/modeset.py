@@ -83,7 +83,7 @@ class Branch(Protocol):
         """Σ modes·⟨θⁿ⟩ (n = 0: Σ modes·⟨ln θ⟩)."""
         ...
 
-    def low_t(self) -> tuple[int, float] | None:
+    def low_frequency_law(self) -> tuple[int, float] | None:
         """(dim, modes/θ_eff^dim) of the branch's low-frequency power law, None if gapped."""
         ...
 
@@ -115,7 +115,7 @@ class DebyeBranch:
             return math.inf  # ∫ω^(d−1+n) dω diverges at ω → 0, so θ(n) → 0
         return self.modes * d / (d + n) * self.theta**n
 
-    def low_t(self):
+    def low_frequency_law(self):
         return self.dim, self.modes / self.theta**self.dim
 
 
@@ -163,9 +163,9 @@ class ScaledModes:
             return self.factor * (total + self.base.modes * math.log(self.scale))
         return self.factor * self.scale**n * total
 
-    def low_t(self):
+    def low_frequency_law(self):
         # The base's low-frequency laws (dim, modes/θ^dim): the lowest power dominates.
-        laws = [law for law in (b.low_t() for b in self.base.branches) if law is not None and law[1] > 0]
+        laws = [law for law in (b.low_frequency_law() for b in self.base.branches) if law is not None and law[1] > 0]
         if not laws:
             return None
         dim = min(d for d, _ in laws)
@@ -219,14 +219,15 @@ class ModeSet:
             nodes = float(np.dot(self.weight, self.theta**n))
         return (nodes + sum(b.moment_sum(n) for b in self.branches)) / self.modes
 
-    def low_temperature_theta(self) -> float:
+    @property
+    def theta_D0(self) -> float:
         """Limit of the effective Debye temperature as T → 0, in K.
 
         From the ω² branches: (3·atoms / Σ modes·θ⁻³)^(1/3), scaled to the mode count.
         Lower-dimensional branches make C fall slower than T³ (limit 0); without any
         low-frequency branch it falls faster (limit ∞).
         """
-        laws = [b.low_t() for b in self.branches]
+        laws = [b.low_frequency_law() for b in self.branches]
         laws = [law for law in laws if law is not None and law[1] > 0]
         if any(d < 3 for d, _ in laws):
             return 0.0
@@ -235,14 +236,14 @@ class ModeSet:
             return math.inf
         return (self.modes / s) ** (1.0 / 3.0)
 
-    def moment_theta(self, n: float) -> float:
+    def moment_debye_temperature(self, n: float) -> float:
         """Moment Debye temperature θ(n) in K (Barron, Berg & Morrison 1957).
 
         θ(n) = [(n+3)/3 · ⟨θⁿ⟩]^(1/n) for n ≠ 0, θ(0) = exp(1/3 + ⟨ln θ⟩), θ(−3) the
         T → 0 Debye temperature.
         """
         if n == -3:
-            return self.low_temperature_theta()
+            return self.theta_D0
         if n == 0:
             return math.exp(1.0 / 3.0 + self.moment(0))
         return ((n + 3.0) / 3.0 * self.moment(n)) ** (1.0 / n)
@@ -251,7 +252,7 @@ class ModeSet:
         """Effective Debye temperature θ_D(T) in K of the vibrational part, at each T ≥ 0 (K).
 
         Inverts the lattice C_v with the Debye heat capacity of ``modes`` modes; the
-        limits are exact: θ_D(0) is :meth:`low_temperature_theta`, and far above every
+        limits are exact: θ_D(0) is :attr:`theta_D0`, and far above every
         mode (T > 20·θ_max, where 1 − C/C_max is lost to rounding) the Thirring moment
         series takes over, whose leading term is θ_∞² = (5/3)⟨θ²⟩.  NaN where no θ
         exists (no vibrational modes, or a lattice C_v that cannot be inverted).
@@ -267,7 +268,7 @@ class ModeSet:
         modes = self.modes
         if modes <= 0:
             return theta
-        theta[T == 0] = self.low_temperature_theta()
+        theta[T == 0] = self.theta_D0
         classical = T > 20.0 * self.theta_max
         if np.any(classical):
             theta[classical] = self._thirring_theta(T[classical])

@@ -111,7 +111,7 @@ def debye_breakdown(
     tolerance: float = 0.01,
     temperatures=None,
     atoms: float | None = None,
-    low_t: LowTemperatureFit | None = None,
+    low_t_fit: LowTemperatureFit | None = None,
     tmax: float | None = None,
     gamma: float | None = None,
 ) -> DebyeBreakdown:
@@ -128,9 +128,9 @@ def debye_breakdown(
     electronic and two-level terms are left out — with θ_D(T) from
     :func:`~modeheat.effective_debye_temperature` (the mode set's, evaluated once on
     the grid) and θ_D(0) from the low-frequency branches
-    (:meth:`ModeSet.low_temperature_theta`); crossings are located to ~1e-10 by root
+    (:attr:`ModeSet.theta_D0`); crossings are located to ~1e-10 by root
     finding between the temperatures examined.  For measured data the electronic γT
-    is subtracted first — `gamma` if given, else γ of `low_t` (a
+    is subtracted first — `gamma` if given, else γ of `low_t_fit` (a
     :func:`low_temperature_fit` result), else of a low-temperature fit up to `tmax`
     — θ_D(0) comes from that fit's β, and crossings are interpolated between data
     points.  Measured C_p is taken as C_v, which holds at low temperature; where
@@ -147,9 +147,9 @@ def debye_breakdown(
     atoms : float, optional — atoms per formula unit of measured data (default the
         stored ``attrs["atoms"]``, else 1; :func:`~modeheat.thermo.atoms_of_data`);
         models and spectra know their own
-    low_t : LowTemperatureFit, optional — γ and θ_D(0) of measured data
+    low_t_fit : LowTemperatureFit, optional — γ and θ_D(0) of measured data
     tmax : float, optional — upper end of the low-temperature fit window (K), used for
-        measured data when `low_t` is not given
+        measured data when `low_t_fit` is not given
     gamma : float, optional — electronic γ of measured data in J/(mol K²), overriding
         that of the low-temperature fit
 
@@ -160,9 +160,9 @@ def debye_breakdown(
     if not (isinstance(tolerance, numbers.Real) and 0 < tolerance < 1):
         raise InputError(f"tolerance must be between 0 and 1, not {tolerance!r}")
     if isinstance(source, pd.DataFrame):
-        return _breakdown_of_data(source, tolerance, temperatures, atoms, low_t, tmax, gamma)
-    if gamma is not None or low_t is not None or tmax is not None:
-        raise InputError("gamma, low_t and tmax are for measured data; a model's lattice part is used directly")
+        return _breakdown_of_data(source, tolerance, temperatures, atoms, low_t_fit, tmax, gamma)
+    if gamma is not None or low_t_fit is not None or tmax is not None:
+        raise InputError("gamma, low_t_fit and tmax are for measured data; a model's lattice part is used directly")
     get = getattr(source, "modeset", None)
     if get is None:
         raise InputError(
@@ -186,7 +186,7 @@ def _grid(ms: ModeSet, temperatures) -> np.ndarray:
     # first bins sit at 1e-5 of its cut-off and carry almost nothing.)
     floor = 1e-4 * ms.modes
     lows = []
-    theta0 = ms.low_temperature_theta()
+    theta0 = ms.theta_D0
     if 0 < theta0 < math.inf:
         lows.append(theta0)
     if ms.weight.size and np.sum(ms.weight) >= floor:
@@ -206,7 +206,7 @@ def _first_exit(inside: np.ndarray) -> int | None:
 def _breakdown_of_model(ms: ModeSet, tolerance: float, temperatures) -> DebyeBreakdown:
     if ms.modes <= 0:
         raise InputError("the source has no vibrational modes: there is no Debye temperature")
-    theta0 = ms.low_temperature_theta()
+    theta0 = ms.theta_D0
     T = _grid(ms, temperatures)
     notes = ["lattice (vibrational) C_v of the model; electronic and two-level terms left out"]
     limit = _T3 * (ms.modes / 3.0) * R / theta0**3 if 0 < theta0 < math.inf else math.nan
@@ -262,24 +262,24 @@ def _crossing(excess, T: np.ndarray, grid_excess: np.ndarray) -> float:
     return float(optimize.brentq(excess, T[k - 1], T[k], xtol=1e-12 * T[k], rtol=1e-12))
 
 
-def _breakdown_of_data(frame, tolerance, temperatures, atoms, low_t, tmax, gamma) -> DebyeBreakdown:
+def _breakdown_of_data(frame, tolerance, temperatures, atoms, low_t_fit, tmax, gamma) -> DebyeBreakdown:
     if temperatures is not None:
         raise InputError("temperatures: measured data are examined at their own temperatures")
     atoms, _ = atoms_of_data(frame, atoms)
     notes = []
-    if low_t is None:
+    if low_t_fit is None:
         if tmax is None:
             raise InputError(
-                "measured data need γ and θ_D(0): pass low_t (a low_temperature_fit result) or tmax, the upper "
+                "measured data need γ and θ_D(0): pass low_t_fit (a low_temperature_fit result) or tmax, the upper "
                 "end of a low-temperature fit window in K"
             )
-        low_t = low_temperature_fit(frame, tmax=tmax, atoms=atoms)
+        low_t_fit = low_temperature_fit(frame, tmax=tmax, atoms=atoms)
         notes.append(f"γ and θ_D(0) from a low-temperature fit C/T = γ + βT² up to {tmax:g} K")
     else:
         notes.append("γ and θ_D(0) from the low-temperature fit given")
-    if not math.isclose(low_t.atoms, atoms):
-        raise InputError(f"the low-temperature fit is for {low_t.atoms:g} atoms per formula unit, not {atoms:g}")
-    g = low_t.gamma if gamma is None else float(gamma)
+    if not math.isclose(low_t_fit.atoms, atoms):
+        raise InputError(f"the low-temperature fit is for {low_t_fit.atoms:g} atoms per formula unit, not {atoms:g}")
+    g = low_t_fit.gamma if gamma is None else float(gamma)
     notes.append(
         f"electronic γT subtracted first (γ = {g:.6g} J/(mol K²){', given' if gamma is not None else ''}); "
         "measured C_p taken as C_v"
@@ -288,8 +288,8 @@ def _breakdown_of_data(frame, tolerance, temperatures, atoms, low_t, tmax, gamma
     order = np.argsort(pts.T, kind="stable")
     T, C = pts.T[order], pts.C[order]
     lattice = C - g * T
-    theta0 = low_t.theta_D0
-    rat = lattice / T**3 / low_t.beta
+    theta0 = low_t_fit.theta_D0
+    rat = lattice / T**3 / low_t_fit.beta
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # NaN where C − γT ≥ 3·atoms·R: counted as outside below
         theta = effective_debye_temperature(T, lattice, atoms=atoms)
@@ -305,7 +305,7 @@ def _breakdown_of_data(frame, tolerance, temperatures, atoms, low_t, tmax, gamma
             up = effective_debye_temperature(T, lattice + s, atoms=atoms)
             down = effective_debye_temperature(T, np.maximum(lattice - s, 0.0), atoms=atoms)
         sigma_theta = np.where(np.isfinite(up) & np.isfinite(down), 0.5 * np.abs(down - up), np.inf)
-        excess_t3 = excess_t3 - 2.0 * s / T**3 / low_t.beta
+        excess_t3 = excess_t3 - 2.0 * s / T**3 / low_t_fit.beta
         excess_theta = np.where(np.isnan(theta), np.nan, excess_theta - 2.0 * sigma_theta / theta0)
         notes.append("with sigma: a point counts as outside the tolerance only when it is outside by more than 2σ")
     t3 = _interpolated_exit(T, excess_t3)

@@ -195,7 +195,7 @@ def _advice(result: FitResult, worst: str) -> list[str]:
     kinds = {type(c) for c in result.model.components}
     if worst == "low-T end":
         tips = []
-        if not 0 < result.model.modeset().low_temperature_theta() < math.inf:
+        if not 0 < result.model.modeset().theta_D0 < math.inf:
             tips.append("an acoustic Debye or SineChain branch (no branch of the model gives the T³ law)")
         if Electronic not in kinds:
             tips.append("an Electronic term (γT dominates a metal's C at the lowest T)")

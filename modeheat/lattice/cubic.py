@@ -259,7 +259,7 @@ def _mass_density(mass_u: float, volume_a3: float) -> float:
 
 def _structure(model) -> _Structure:
     if not isinstance(model, (CubicLattice, RockSalt)):
-        raise TypeError(f"expected a CubicLattice or RockSalt, not {type(model).__name__}")
+        raise InputError(f"expected a CubicLattice or RockSalt, not {type(model).__name__}")
     return model._build_structure()
 
 

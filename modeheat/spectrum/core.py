@@ -798,7 +798,7 @@ class Spectrum(Documented):
             raise InputError(f"moment order must be ≥ −3, not {n!r}")
         if n == -3 and self._continuation.method == "off":
             return self._continuation.theta
-        return self._modeset.moment_theta(n)
+        return self._modeset.moment_debye_temperature(n)
 
     def reduced_density(self) -> ReducedDensity:
         """g(ω)/ω² on the positive-frequency grid, with the Debye level 9·atoms/θ_D(0)³."""
