@@ -29,13 +29,14 @@ from __future__ import annotations
 import dataclasses
 import math
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from functools import lru_cache
 from typing import ClassVar, Iterable, Mapping
 
 import numpy as np
 from scipy import integrate
 
+from . import _checks
 from ._document import Documented
 from .cp_cv import cp_from_cv
 from .engine import special
@@ -69,27 +70,18 @@ _LARGEST = 1e100
 
 
 def _number(kind: str, label: str, value) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{kind}: {label} must be a number, not {value!r}") from None
+    v = _checks.number(f"{kind}: {label}", value)
     if math.isfinite(v) and v > _LARGEST:
         raise InputError(f"{kind}: {label} = {v:g} is beyond any meaningful size (at most {_LARGEST:g})")
     return v
 
 
 def _positive(kind: str, label: str, value) -> float:
-    v = _number(kind, label, value)
-    if not (math.isfinite(v) and v > 0):
-        raise InputError(f"{kind}: {label} must be positive and finite, not {value!r}")
-    return v
+    return _checks.positive(f"{kind}: {label}", _number(kind, label, value))
 
 
 def _non_negative(kind: str, label: str, value) -> float:
-    v = _number(kind, label, value)
-    if not (math.isfinite(v) and v >= 0):
-        raise InputError(f"{kind}: {label} must be ≥ 0 and finite, not {value!r}")
-    return v
+    return _checks.non_negative(f"{kind}: {label}", _number(kind, label, value))
 
 
 def _kelvin(kind: str, label: str, value) -> float:

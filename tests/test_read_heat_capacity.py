@@ -174,7 +174,7 @@ def test_contradictions_are_errors(tmp_path):
     mass.write_text("T (K)  C (J/(g K))\n2.0  1.5\n", encoding="utf-8")
     with pytest.raises(InputError, match="per='atom' applies to molar units"):
         read_heat_capacity(mass, per="atom", molar_mass=10.0)
-    with pytest.raises(InputError, match="molar_mass must be positive"):
+    with pytest.raises(InputError, match="molar_mass must be a positive number"):
         read_heat_capacity(mass, molar_mass=-1)
     with pytest.raises(InputError, match="unknown heat-capacity unit 'W'"):
         read_heat_capacity(mass, unit="W")

@@ -135,7 +135,7 @@ def test_parameters_replace_and_solid():
     m = sp + Electronic(1e-3)
     changed = m.with_parameters({"dos.scale": 1.1, "dos.modes": 5.0})
     assert changed["dos"].scale == 1.1 and changed["dos"].modes == 5.0 and changed["dos"].spectrum is sp
-    with pytest.raises(InputError, match="scale must be positive"):
+    with pytest.raises(InputError, match="scale must be a positive number"):
         m.with_parameters({"dos.scale": 0.0})
     with pytest.raises(InputError, match="spectrum must be a Spectrum"):
         PhononDOS("dos.txt")

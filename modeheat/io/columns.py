@@ -12,6 +12,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .. import _checks
 from ..errors import InputError
 
 __all__ = []
@@ -323,10 +324,4 @@ def _select(columns, names: list[str], header: _Header | None, path) -> list[int
 
 
 def _positive_argument(label: str, value, path) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{label} must be a number, not {value!r}", path=path) from None
-    if not (np.isfinite(v) and v > 0):
-        raise InputError(f"{label} must be positive and finite, not {value!r}", path=path)
-    return v
+    return _checks.positive(label, value, path=path)

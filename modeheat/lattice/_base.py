@@ -8,6 +8,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy import constants as _c
 
+from .. import _checks
 from ..errors import InputError
 from ..spectrum import Spectrum
 from ..units import check_unit, kelvin_per
@@ -28,24 +29,8 @@ _POINTS = 401  # default number of frequency grid points
 # validation helpers
 
 
-def _positive(label: str, value) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{label} must be a positive number, not {value!r}") from None
-    if not (math.isfinite(v) and v > 0):
-        raise InputError(f"{label} must be a positive number, not {value!r}")
-    return v
-
-
-def _finite(label: str, value) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{label} must be a finite number, not {value!r}") from None
-    if not math.isfinite(v):
-        raise InputError(f"{label} must be a finite number, not {value!r}")
-    return v
+_positive = _checks.positive
+_finite = _checks.finite
 
 
 def _fix(obj, name: str, value) -> None:

@@ -64,10 +64,11 @@ from typing import Mapping
 import numpy as np
 from scipy import constants as _c
 
+from .. import _checks
 from .._document import Documented
 from ..engine.modeset import ModeSet
 from ..errors import AtomCountWarning, InputError, SpectrumWarning
-from ..units import ATOMS_RANGE, KELVIN_RANGE, check_unit, kelvin_per
+from ..units import KELVIN_RANGE, check_unit, kelvin_per
 from .continuation import _check_low_t, _histogram_modeset, _modes_modeset, _sampled_modeset
 
 __all__ = ["Spectrum", "ReducedDensity", "debye_temperature_from_sound"]
@@ -152,16 +153,7 @@ def _partial_vectors(partials, label: str, size: int, against: str) -> dict[str,
     return parts
 
 
-def _check_atoms(atoms) -> float:
-    try:
-        a = float(atoms)
-    except (TypeError, ValueError):
-        raise InputError(f"atoms must be a positive number, not {atoms!r}") from None
-    if not (math.isfinite(a) and a > 0):
-        raise InputError(f"atoms must be a positive number, not {atoms!r}")
-    if not ATOMS_RANGE[0] <= a <= ATOMS_RANGE[1]:
-        raise InputError(f"atoms = {a:g} per formula unit is outside {ATOMS_RANGE[0]:g}–{ATOMS_RANGE[1]:g}")
-    return a
+_check_atoms = _checks.atoms
 
 
 def _clear_atoms(modes: float) -> int | None:
