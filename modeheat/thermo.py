@@ -16,9 +16,10 @@ import numpy as np
 import pandas as pd
 
 from .engine import special
+from . import _checks
 from .engine.modeset import ModeSet
 from .errors import InputError, ModeheatError, NoDebyeTemperatureWarning
-from .units import ATOMS_RANGE, KELVIN_RANGE, R
+from .units import KELVIN_RANGE, R
 
 __all__ = [
     "thermo",
@@ -265,8 +266,7 @@ def atoms_of_data(data, atoms: float | None = None) -> tuple[float, bool]:
         stored, holder = float(value), label
     if atoms is None:
         return (stored, True) if stored is not None else (1.0, False)
-    if isinstance(atoms, bool) or not (isinstance(atoms, numbers.Real) and math.isfinite(atoms) and atoms > 0):
-        raise InputError(f"atoms must be a positive number, not {atoms!r}")
+    atoms = _checks.atoms(atoms)
     if stored is not None and not math.isclose(float(atoms), stored):
         raise InputError(
             f"atoms={float(atoms):g} was given but {holder} stores atoms={stored:g} (attrs['atoms'], "
@@ -349,9 +349,7 @@ def effective_debye_temperature(first, second, /, *, atoms: float | None = None)
     bad = np.flatnonzero(~np.isfinite(c.ravel()))
     if bad.size:
         raise InputError(f"cv is {float(c.ravel()[bad[0]])!r}, not a finite number", index=int(bad[0]))
-    lo, hi = ATOMS_RANGE
-    if not (isinstance(atoms, (int, float, np.number)) and lo <= atoms <= hi):
-        raise InputError(f"atoms must be a number of atoms per formula unit in {lo:g}–{hi:g}, not {atoms!r}")
+    atoms = _checks.atoms(atoms)
     per_mode = c / (3.0 * atoms * R)
     theta = T * special.debye_cv_inverse(per_mode)
     above = np.count_nonzero(per_mode >= 1)
