@@ -1,0 +1,205 @@
+"""The Explorer's fit panel: fit the checked parameters in a background thread, with progress and Cancel."""
+
+from __future__ import annotations
+
+import html
+import math
+import threading
+from collections.abc import Callable, Sequence
+
+import ipywidgets as widgets
+import pandas as pd
+
+from ..errors import Cancelled
+from ..fitting import FitResult, fit
+from ..models import Mixture
+from ..progress import Progress
+from .status import StatusArea
+
+__all__ = ["FitPanel", "FitProblem", "parameter_table"]
+
+#: What ``get_problem()`` returns: the starting model, the data sets, the window
+#: (tmin, tmax) in K (None: open) and the keys of the parameters to vary.
+FitProblem = tuple[Mixture, Sequence[pd.DataFrame], tuple[float | None, float | None], Sequence[str]]
+
+#: Starting length of the progress bar: a fit does not know its number of evaluations, so
+#: the bar doubles whenever it fills.
+_FIRST_MAX = 64
+
+
+class FitPanel(widgets.VBox):
+    """Fit, Cancel, a progress bar, the parameter table and the fit report.
+
+    Pressing Fit (or :meth:`run`) asks `get_problem` for the model, the data, the window
+    and the parameters to vary, and runs :func:`~modeheat.fit` in a background thread,
+    so the notebook stays responsive and Cancel works: the fit's progress callback
+    feeds the bar and answers False once Cancel was pressed.  Widgets are updated from
+    that thread only by plain trait assignments.  When the fit ends, the table shows
+    every parameter with its standard error and the correlations of the varied ones,
+    the report text shows :meth:`FitResult.report`, and `on_result(result)` is called.
+    A cancelled or failed fit says so in `status` and changes nothing; nothing raises.
+
+    Parameters
+    ----------
+    get_problem : callable — returns ``(model, data, (tmin, tmax), vary)``
+        (:data:`FitProblem`); tmin and tmax in K
+    on_result : callable — receives the :class:`~modeheat.fitting.FitResult`
+    status : StatusArea — where progress notes and problems are shown
+
+    Attributes
+    ----------
+    fit_button, cancel_button : Button — DOM classes ``mh-fit`` and ``mh-cancel``
+    progress : IntProgress — residual evaluations so far
+    table : HTML — parameters, ± standard errors and the correlation matrix
+    report : HTML — the report text in a ``<pre>``
+    result : FitResult or None — the last finished fit
+    """
+
+    def __init__(
+        self,
+        get_problem: Callable[[], FitProblem],
+        on_result: Callable[[FitResult], object],
+        status: StatusArea,
+    ) -> None:
+        self.get_problem = get_problem
+        self.on_result = on_result
+        self.status = status
+        self.result: FitResult | None = None
+        self._thread: threading.Thread | None = None
+        self._cancel = threading.Event()
+        self.fit_button = widgets.Button(description="Fit", tooltip="fit the checked parameters over the window")
+        self.fit_button.add_class("mh-fit")
+        self.cancel_button = widgets.Button(description="Cancel", disabled=True, tooltip="stop the running fit")
+        self.cancel_button.add_class("mh-cancel")
+        self.progress = widgets.IntProgress(value=0, min=0, max=_FIRST_MAX, description="evaluations")
+        self.table = widgets.HTML(value="")
+        self.table.add_class("mh-fit-table")
+        self.report = widgets.HTML(value="")
+        self.report.add_class("mh-fit-report")
+        self.fit_button.on_click(lambda _: self.run())
+        self.cancel_button.on_click(lambda _: self.cancel())
+        super().__init__([widgets.HBox([self.fit_button, self.cancel_button, self.progress]), self.table, self.report])
+        self.add_class("mh-fit-panel")
+
+    @property
+    def running(self) -> bool:
+        """True while a fit runs."""
+        return self._thread is not None and self._thread.is_alive()
+
+    def run(self, wait: bool = False) -> FitResult | None:
+        """Start a fit of the current problem (refused, with a note, while one runs).
+
+        Parameters
+        ----------
+        wait : bool — block until the fit has ended (tests, scripts)
+
+        Returns
+        -------
+        FitResult or None
+            With `wait`, the finished fit, or None when it was cancelled or failed (the
+            status says why); without, None.
+        """
+        if self.running:
+            self.status.error("a fit is already running: wait for it to end or press Cancel")
+            return None
+        problem = None
+        with self.status.guard("preparing the fit"):
+            problem = self.get_problem()
+        if problem is None:
+            return None
+        self._cancel.clear()
+        self.result = None
+        self.progress.max, self.progress.value, self.progress.bar_style = _FIRST_MAX, 0, ""
+        self.fit_button.disabled, self.cancel_button.disabled = True, False
+        self.status.info("fitting…")
+        self._thread = threading.Thread(target=self._work, args=(problem,), name="modeheat-fit", daemon=True)
+        self._thread.start()
+        if wait:
+            self._thread.join()
+            return self.result
+        return None
+
+    def cancel(self) -> None:
+        """Ask the running fit to stop at its next evaluation (nothing to do when none runs)."""
+        if self.running:
+            self._cancel.set()
+            self.status.info("cancelling the fit…")
+
+    # --- the fit thread -----------------------------------------------------------------------
+    def _work(self, problem: FitProblem) -> None:
+        try:
+            with self.status.guard("fitting"):
+                model, data, (tmin, tmax), vary = problem
+                try:
+                    result = fit(model, list(data), tmin=tmin, tmax=tmax, vary=list(vary), progress=self._step)
+                except Cancelled:
+                    self.progress.bar_style = "warning"
+                    self.status.info(f"fit cancelled after {self.progress.value} evaluations: nothing changed")
+                    return
+                self.result = result
+                self.table.value = parameter_table(result)
+                self.report.value = f"<pre>{html.escape(result.report())}</pre>"
+                self.progress.bar_style = "success" if result.success else "warning"
+                self.status.info(_summary(result))
+            if self.result is None:
+                return  # the status says what went wrong
+            with self.status.guard("applying the fit result"):
+                self.on_result(self.result)
+        finally:
+            self.fit_button.disabled, self.cancel_button.disabled = False, True
+
+    def _step(self, step: Progress) -> bool:
+        """The fit's progress callback: move the bar; False (cancel) once Cancel was pressed."""
+        if step.total is not None and step.done >= step.total:
+            self.progress.max = max(step.total, 1)
+        else:
+            while step.done > self.progress.max:
+                self.progress.max *= 2
+        self.progress.value = min(step.done, self.progress.max)
+        return not self._cancel.is_set()
+
+
+def _summary(result: FitResult) -> str:
+    """One status line: points, goodness of fit, and the warnings that matter."""
+    quality = f"χ²_red = {result.chi2_red:.3g}" if result.weighted else f"scatter {result.scatter:.3g} J/(mol K)"
+    text = f"fit done: {result.n_points} points, {quality}, {result.nfev} evaluations"
+    if not result.success:
+        text += f"; it did not converge ({result.message})"
+    if result.at_bound:
+        text += f"; at a bound: {', '.join(result.at_bound)}"
+    return text
+
+
+def parameter_table(result: FitResult) -> str:
+    """The fit's parameters and correlations as an HTML table.
+
+    Parameters
+    ----------
+    result : FitResult
+
+    Returns
+    -------
+    str
+        One row per parameter (value, ± standard error in the parameter's own unit,
+        varied or fixed), then the correlation matrix of the varied parameters.
+    """
+    rows = []
+    for key, value in result.params.items():
+        err = result.stderr[key]
+        err_text = "—" if math.isnan(err) else f"± {err:.3g}"
+        state = "varied" if key in result.varied else "fixed"
+        if key in result.at_bound:
+            state += " (at its bound)"
+        rows.append(f"<tr><td>{html.escape(key)}</td><td>{value:.6g}</td><td>{err_text}</td><td>{state}</td></tr>")
+    head = "<tr><th>parameter</th><th>value</th><th>± stderr</th><th></th></tr>"
+    out = f'<table class="mh-fit-parameters">{head}{"".join(rows)}</table>'
+    corr = result.correlation
+    if len(corr) > 1:
+        names = [html.escape(str(k)) for k in corr.columns]
+        chead = "<tr><th>correlation</th>" + "".join(f"<th>{n}</th>" for n in names) + "</tr>"
+        crows = "".join(
+            f"<tr><td>{names[i]}</td>" + "".join(f"<td>{v:+.3f}</td>" for v in corr.iloc[i]) + "</tr>"
+            for i in range(len(names))
+        )
+        out += f'<table class="mh-fit-correlation">{chead}{crows}</table>'
+    return out
