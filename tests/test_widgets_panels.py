@@ -128,12 +128,17 @@ def test_unusable_control_entries_are_reported():
 
 def test_the_unit_control_reaches_the_reader():
     panel, spectra, _, status = make_panel()
-    headerless = b"0 0\n1 1.5\n2 3\n3 1.5\n4 0\n"  # invented; integral 6 modes → 2 atoms, no unit in the file
+    # Invented: no unit in the file, rows out of order, 6 modes once sorted → 2 atoms.
+    headerless = b"0 0\n2 3\n1 1.5\n3 1.5\n4 0\n"
     assert panel.load_bytes("spectrum", "bare.txt", headerless) is None
     assert status.kind == "error" and "bare.txt" in status.message
     panel.unit.value = "meV"
     spectrum = panel.load_bytes("spectrum", "bare.txt", headerless)
     assert spectrum.unit == "meV"
+    # The reader's warning about the sorting becomes a note naming the upload.
+    assert status.kind == "info"
+    assert "note: spectrum 'bare.txt': frequencies were not in increasing order" in status.message
+    assert "modeheat-upload-" not in status.message
 
 
 # --- fit panel ------------------------------------------------------------------------------
