@@ -72,7 +72,7 @@ class HeatCapacityView(widgets.VBox):
         self.data_points: list[bq.Scatter] = []
         self.error_bars: list[bq.Lines] = []
         self.x_axis = bq.Axis(scale=sc["x"], label="T (K)")
-        self.y_axis = bq.Axis(scale=sc["y"], orientation="vertical", label="C (J/mol K)")
+        self.y_axis = bq.Axis(scale=sc["y"], side="left", label="C (J/mol K)")
         self.figure = bq.Figure(marks=self._marks(), axes=[self.x_axis, self.y_axis], title="heat capacity",
                                 fig_margin=dict(top=30, bottom=45, left=70, right=15),
                                 layout=widgets.Layout(width="560px", height="380px"))
@@ -83,7 +83,7 @@ class HeatCapacityView(widgets.VBox):
         self.residual_figure = bq.Figure(
             marks=[self.residual_zero, self.residual_points],
             axes=[bq.Axis(scale=rs["x"], label="T (K)"),
-                  bq.Axis(scale=rs["y"], orientation="vertical", label="data − model")],
+                  bq.Axis(scale=rs["y"], side="left", label="data − model")],
             fig_margin=dict(top=10, bottom=40, left=70, right=15),
             layout=widgets.Layout(width="560px", height="170px", display="none"),
         )

@@ -114,7 +114,7 @@ class BranchEditor(widgets.VBox):
         try:
             if spectra is not self._spectra:
                 self._spectra = spectra
-                self.kind.options = list(NEW_COMPONENTS) + [
+                self.kind.options = [(k, k) for k in NEW_COMPONENTS] + [
                     (f"loaded DOS: {sp.name or i + 1}", i) for i, sp in enumerate(spectra)
                 ]
             comps = model.components if model is not None else ()

@@ -35,7 +35,7 @@ class SpectrumView(widgets.VBox):
         self.spectrum_lines: list[bq.Lines] = []
         self._spectra_key: tuple | None = None
         self.x_axis = bq.Axis(scale=self._sc["x"], label="frequency (THz)")
-        self.y_axis = bq.Axis(scale=self._sc["y"], orientation="vertical", label="modes per THz")
+        self.y_axis = bq.Axis(scale=self._sc["y"], side="left", label="modes per THz")
         self.figure = bq.Figure(marks=[self.model_line, self.debye_level], axes=[self.x_axis, self.y_axis],
                                 title="density of states", fig_margin=dict(top=30, bottom=45, left=70, right=15),
                                 layout=widgets.Layout(width="520px", height="380px"))
