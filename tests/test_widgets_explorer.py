@@ -218,6 +218,9 @@ def test_bad_edit_reports_and_keeps_the_state():
     e._on_values({"debye.theta": -5.0})
     assert e.status.kind == "error" and "debye" in e.status.message
     assert e.state is before
+    e.curves_view.tmin.value = 2000.0  # above the window's top: refused, and the box goes back
+    assert e.status.kind == "error" and "window" in e.status.message
+    assert e.state is before and e.curves_view.tmin.value == 1.0
 
 
 def test_session_round_trip(tmp_path):

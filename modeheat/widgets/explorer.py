@@ -258,8 +258,11 @@ class Explorer(widgets.VBox):
             self._refresh()
 
     def _edit(self, action: str, **changes) -> None:
+        """Make and show a new state; a refused edit says why and puts the controls back."""
         with self.status.guard(action):
             self.set_state(dataclasses.replace(self.state, **changes))
+            return
+        self._refresh()
 
     def _refresh(self) -> None:
         s = self.state
@@ -292,7 +295,10 @@ class Explorer(widgets.VBox):
 
     def _on_values(self, values: dict) -> None:
         with self.status.guard("changing " + ", ".join(values)):
-            self.set_state(dataclasses.replace(self.state, model=self.state.model.with_parameters(values)))
+            model = self.state.model.with_parameters(values)
+            self.set_state(dataclasses.replace(self.state, model=model))
+            return
+        self._refresh()
 
     def _on_vary(self, key: str, checked: bool) -> None:
         vary = self.state.vary | {key} if checked else self.state.vary - {key}
@@ -329,7 +335,7 @@ class Explorer(widgets.VBox):
         atoms = s.atoms if s.atoms is not None else spectrum.atoms
         self._edit(f"adding the DOS {spectrum.name or ''}".rstrip(), spectra=s.spectra + (spectrum,),
                    model=model, atoms=atoms)
-        if not self.status.message.startswith("adding"):
+        if self.status.kind != "error":
             self.status.info(f"loaded the DOS {spectrum.name or ''} ({spectrum.atoms:g} atoms per formula unit)")
 
     def _on_data(self, frame: pd.DataFrame) -> None:
