@@ -162,6 +162,9 @@ def test_demo_scale_slider_lowers_c_and_moves_the_dos():
     assert np.all(after[below] < before[below])
     np.testing.assert_allclose(after, temperature_curves(e.state.model, T)["C"], rtol=F32)
     np.testing.assert_allclose(e.spectrum_view.model_line.y, plot_dos(e.state.model)["total"], rtol=F32)
+    # the loaded spectrum's own curve stays as loaded (reference: the backend)
+    own = temperature_curves(e.state.spectra[0], T)["C"]
+    np.testing.assert_allclose(np.atleast_2d(e.curves_view.spectrum_lines.y)[0], own, rtol=F32)  # one row: bqplot keeps 1-D
 
 
 def test_data_error_bars_and_residuals():
@@ -192,6 +195,10 @@ def test_spectrum_and_data_callbacks_on_an_empty_explorer():
     e._on_data(cp)
     e._on_data(cp.iloc[:10].copy())
     assert len(e.curves_view.data_points) == 2 and e.state.window == (2.0, 300.0)
+    np.testing.assert_allclose(e.curves_view.data_points[1].y, cp["C"].iloc[:10], rtol=F32)
+    e.undo()
+    assert len(e.curves_view.data_points) == 1 and len(e.state.data) == 1
+    np.testing.assert_allclose(e.curves_view.data_points[0].y, cp["C"], rtol=F32)
     # the loaded DOS is offered as a branch
     e.editor.kind.value = 0
     e.editor.add_button.click()

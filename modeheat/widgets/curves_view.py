@@ -13,7 +13,7 @@ from ..models import Dilatation, Mixture
 from ..representations import contributions, temperature_curves
 from ..units import R
 
-__all__ = ["HeatCapacityView", "REPRESENTATIONS", "PALETTE", "compact", "model_cp"]
+__all__ = ["HeatCapacityView", "REPRESENTATIONS", "PALETTE", "compact", "model_cp", "same_objects"]
 
 #: A colour-blind-safe palette of our own choosing (distinct in hue and lightness).
 PALETTE = ["#1f3b73", "#d9822b", "#3a9e8f", "#b3478f", "#7a7a00", "#5fa8e0", "#8c5a2b", "#555555"]
@@ -36,6 +36,15 @@ def compact(values, log: bool = False) -> np.ndarray:
     return np.where(out > 0, out, np.float32(np.nan)) if log else out
 
 
+def same_objects(a: tuple, b: tuple | None) -> bool:
+    """The very same objects in the same order, plain values (str, float, bool) equal: a
+    cache key that holds its objects, so no freed object's id is reused while it lives."""
+    plain = (str, float, bool)
+    return b is not None and len(a) == len(b) and all(
+        x is y or (type(x) in plain and type(x) is type(y) and x == y) for x, y in zip(a, b)
+    )
+
+
 def _bars(x: np.ndarray, y: np.ndarray, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Error bars as one polyline: a vertical segment per point, NaN between segments."""
     gap = np.full_like(x, np.nan)
@@ -43,7 +52,8 @@ def _bars(x: np.ndarray, y: np.ndarray, s: np.ndarray) -> tuple[np.ndarray, np.n
 
 
 class HeatCapacityView(widgets.VBox):
-    """C, C/T³, C/T vs T², θ_D(T) or S against temperature, with data and residuals.
+    """C, C/T³, C/T vs T², θ_D(T) or S against temperature: the model (and its
+    components), each loaded spectrum as loaded, the data with error bars, residuals.
 
     The first :class:`bqplot.Lines` mark of :attr:`figure` (DOM class ``mh-heat-capacity``)
     is the model's total; :attr:`representation` (class ``mh-representation``) picks the
@@ -67,6 +77,10 @@ class HeatCapacityView(widgets.VBox):
         self.model_line = bq.Lines(x=[], y=[], scales=sc, colors=[PALETTE[0]], stroke_width=2.5, labels=["model"])
         self.component_lines = bq.Lines(x=[], y=[], scales=sc, colors=PALETTE[1:], stroke_width=1.2,
                                         line_style="dashed", display_legend=False)
+        self.spectrum_lines = bq.Lines(x=[], y=[], scales=sc, colors=PALETTE[5:], stroke_width=1.5,
+                                       line_style="dotted")
+        self._spectrum_curves: tuple = (None, [])
+        self._data_curves: tuple = (None, [])
         self.dulong_petit = bq.Lines(x=[], y=[], scales=sc, colors=["#999999"], line_style="dotted")
         self.t3_law = bq.Lines(x=[], y=[], scales=sc, colors=["#999999"], line_style="dash_dotted")
         self.data_points: list[bq.Scatter] = []
@@ -97,7 +111,7 @@ class HeatCapacityView(widgets.VBox):
 
     def _marks(self) -> list:
         # the model's total first: the browser test finds it as the first line
-        return [self.model_line, self.component_lines, self.dulong_petit, self.t3_law, *self.error_bars, *self.data_points]
+        return [self.model_line, self.component_lines, self.spectrum_lines, self.dulong_petit, self.t3_law, *self.error_bars, *self.data_points]
 
     def show(self, state) -> None:
         """Draw an :class:`~modeheat.widgets.explorer.ExplorerState`: set the controls, compute
@@ -116,6 +130,7 @@ class HeatCapacityView(widgets.VBox):
         self.x_axis.scale, self.y_axis.scale = sc["x"], sc["y"]
         self.x_axis.label, self.y_axis.label = ("T² (K²)" if xcol == "T2" else "T (K)"), ylabel
         self._draw_model(state, xcol, ycol, log_y)
+        self._draw_spectra(state, xcol, ycol, log_y)
         self._draw_data(state, xcol, ycol, log_y)
 
     def _draw_model(self, state, xcol: str, ycol: str, log_y: bool) -> None:
@@ -153,6 +168,22 @@ class HeatCapacityView(widgets.VBox):
             self.t3_law.x = x if show else []
             self.t3_law.y = compact(law, log_y) if show else []
 
+    def _draw_spectra(self, state, xcol: str, ycol: str, log_y: bool) -> None:
+        """Each loaded spectrum's own curve (as loaded, scale 1), computed again only when
+        the spectra or the temperatures change."""
+        T = state.temperatures()
+        key = (*state.spectra, float(T[0]), float(T[-1]))
+        if not same_objects(key, self._spectrum_curves[0]):
+            self._spectrum_curves = (key, [temperature_curves(s, T) for s in state.spectra])
+        tables = self._spectrum_curves[1]
+        with self.spectrum_lines.hold_sync():
+            if tables:
+                self.spectrum_lines.x = compact(tables[0][xcol])
+                self.spectrum_lines.y = compact(np.vstack([t[ycol].to_numpy() for t in tables]), log_y)
+                self.spectrum_lines.labels = [s.name or f"DOS {i + 1}" for i, s in enumerate(state.spectra)]
+            else:
+                self.spectrum_lines.x, self.spectrum_lines.y = [], []
+
     def _set_data_marks(self, n: int) -> None:
         if n == len(self.data_points):
             return
@@ -169,8 +200,10 @@ class HeatCapacityView(widgets.VBox):
     def _draw_data(self, state, xcol: str, ycol: str, log_y: bool) -> None:
         model: Mixture | None = state.model
         residual_x, residual_y = [], []
-        for frame, points, bars in zip(state.data, self.data_points, self.error_bars):
-            curves = temperature_curves(frame)
+        key = state.data
+        if not same_objects(key, self._data_curves[0]):  # data change rarely: their curves are kept until then
+            self._data_curves = (key, [temperature_curves(d) for d in state.data])
+        for curves, points, bars in zip(self._data_curves[1], self.data_points, self.error_bars):
             has_y = ycol in curves.columns
             with points.hold_sync():
                 points.x = compact(curves[xcol]) if has_y else []

@@ -9,7 +9,7 @@ import bqplot as bq
 import ipywidgets as widgets
 
 from ..representations import plot_dos, reduced_dos
-from .curves_view import PALETTE, compact
+from .curves_view import PALETTE, compact, same_objects
 
 __all__ = ["SpectrumView", "UNITS"]
 
@@ -48,8 +48,8 @@ class SpectrumView(widgets.VBox):
         self.unit.value, self.reduced.value = unit, reduced
         self.x_axis.label = f"frequency ({unit})"
         self.y_axis.label = f"g/ω² (modes per {unit}³)" if reduced else f"modes per {unit}"
-        key = (tuple(id(s) for s in state.spectra), unit, reduced)
-        if key != self._spectra_key:  # loaded spectra change rarely: redraw only then
+        key = (*state.spectra, unit, reduced)
+        if not same_objects(key, self._spectra_key):  # loaded spectra change rarely: redraw only then
             self._spectra_key = key
             self._draw_spectra(state.spectra, unit, reduced)
         model = state.model
