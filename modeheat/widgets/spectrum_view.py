@@ -1,0 +1,79 @@
+"""The spectrum view: loaded densities of states (total and partials) and the model's,
+as g(ω) or as the reduced density g/ω² with the Debye level."""
+
+from __future__ import annotations
+
+import math
+
+import bqplot as bq
+import ipywidgets as widgets
+
+from ..representations import plot_dos, reduced_dos
+from .curves_view import PALETTE, compact, same_objects
+
+__all__ = ["SpectrumView", "UNITS"]
+
+#: Frequency units a user may pick (the backend's names).
+UNITS = ("THz", "meV", "cm-1", "K")
+
+
+class SpectrumView(widgets.VBox):
+    """Densities of states against frequency (DOM class ``mh-spectrum`` on :attr:`figure`).
+
+    The first mark is the model's total density; one mark per loaded spectrum follows
+    (its total and partials as rows), then the Debye level of the reduced density.
+    """
+
+    def __init__(self, **kwargs):
+        super().__init__(**kwargs)
+        self.unit = widgets.Dropdown(options=list(UNITS), value="THz", description="frequency in")
+        self.reduced = widgets.ToggleButtons(options=[("g(ω)", False), ("g/ω²", True)], value=False)
+        self.reduced.add_class("mh-reduced")
+        self._sc = {"x": bq.LinearScale(min=0.0), "y": bq.LinearScale(min=0.0)}
+        self.model_line = bq.Lines(x=[], y=[], scales=self._sc, colors=[PALETTE[0]], stroke_width=2.5)
+        self.debye_level = bq.Lines(x=[], y=[], scales=self._sc, colors=["#999999"], line_style="dashed")
+        self.spectrum_lines: list[bq.Lines] = []
+        self._spectra_key: tuple | None = None
+        self.x_axis = bq.Axis(scale=self._sc["x"], label="frequency (THz)")
+        self.y_axis = bq.Axis(scale=self._sc["y"], side="left", label="modes per THz")
+        self.figure = bq.Figure(marks=[self.model_line, self.debye_level], axes=[self.x_axis, self.y_axis],
+                                title="density of states", fig_margin=dict(top=30, bottom=45, left=70, right=15),
+                                layout=widgets.Layout(width="520px", height="380px"))
+        self.figure.add_class("mh-spectrum")
+        self.children = [widgets.HBox([self.unit, self.reduced]), self.figure]
+
+    def show(self, state) -> None:
+        """Draw an :class:`~modeheat.widgets.explorer.ExplorerState`'s spectra and model."""
+        unit, reduced = state.unit, state.reduced
+        self.unit.value, self.reduced.value = unit, reduced
+        self.x_axis.label = f"frequency ({unit})"
+        self.y_axis.label = f"g/ω² (modes per {unit}³)" if reduced else f"modes per {unit}"
+        key = (*state.spectra, unit, reduced)
+        if not same_objects(key, self._spectra_key):  # loaded spectra change rarely: redraw only then
+            self._spectra_key = key
+            self._draw_spectra(state.spectra, unit, reduced)
+        model = state.model
+        vibrating = model is not None and model.modes > 0
+        table = (reduced_dos if reduced else plot_dos)(model, unit=unit) if vibrating else None
+        with self.model_line.hold_sync():
+            self.model_line.x = compact(table["frequency"]) if vibrating else []
+            self.model_line.y = compact(table["reduced" if reduced else "total"]) if vibrating else []
+        level = table.attrs["debye_level"] if vibrating and reduced else math.nan
+        with self.debye_level.hold_sync():
+            show = math.isfinite(level)
+            self.debye_level.x = compact(table["frequency"].iloc[[0, -1]]) if show else []
+            self.debye_level.y = compact([level, level]) if show else []
+
+    def _draw_spectra(self, spectra, unit: str, reduced: bool) -> None:
+        lines = []
+        for i, sp in enumerate(spectra):
+            table = (reduced_dos if reduced else plot_dos)(sp, unit=unit)
+            columns = ["reduced"] if reduced else ["total", *sp.partials]
+            colour = PALETTE[(2 * i + 1) % len(PALETTE)]
+            lines.append(bq.Lines(
+                x=compact(table["frequency"]), y=compact(table[columns].to_numpy().T), scales=self._sc,
+                colors=[colour] + [PALETTE[(2 * i + 2 + k) % len(PALETTE)] for k in range(len(columns) - 1)],
+                labels=[f"{sp.name or 'DOS'}: {c}" for c in columns], stroke_width=1.2,
+            ))
+        self.spectrum_lines = lines
+        self.figure.marks = [self.model_line, *lines, self.debye_level]
