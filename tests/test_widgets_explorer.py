@@ -65,7 +65,11 @@ def test_model_line_is_the_backends_heat_capacity():
     np.testing.assert_allclose(_model_y(e), want["C"], rtol=F32)
     # 3·atoms·R, the classical limit (common practice), with atoms = 2
     np.testing.assert_allclose(e.curves_view.dulong_petit.y, 6.0 * 8.314462618, rtol=F32)
-    np.testing.assert_allclose(e.curves_view.t3_law.y, want["T"] ** 3 * want.attrs["t3_level"], rtol=F32)
+    # the T³ law (Debye, common practice), drawn where it stays below the model's highest C
+    law = want["T"].to_numpy() ** 3 * want.attrs["t3_level"]
+    law = np.where(law <= want["C"].max(), law, np.nan)
+    np.testing.assert_allclose(e.curves_view.t3_law.y, law, rtol=F32)
+    assert np.isnan(law[-1]) and np.isfinite(law[0])
 
 
 def test_slider_moves_the_model_and_undo_redo_return():
@@ -287,3 +291,24 @@ def test_demo_files_in_the_package_match_the_repository():
     for name in ("zorbium_lumide_dos.txt", "zorbium_lumide_cp.txt"):
         shipped = (ROOT / "modeheat" / "widgets" / "demo" / name).read_bytes()
         assert shipped == (ROOT / "demo_spectra" / name).read_bytes()
+
+
+def test_axes_stay_put_while_a_slider_moves():
+    """The frame follows what is shown, not a parameter: moving a slider moves the curve
+    against fixed axes (so a user, and the browser test, see the change); switching the
+    representation or pressing "fit axes" frames every curve again."""
+    e = Explorer.demo()
+    x_scale, y_scale = e.curves_view.x_axis.scale, e.curves_view.y_axis.scale
+    frame = (x_scale.min, x_scale.max, y_scale.min, y_scale.max)
+    y = np.concatenate([_model_y(e), np.asarray(e.curves_view.data_points[0].y, dtype=float)])
+    assert frame[2] < np.nanmin(y) and np.nanmax(y) < frame[3]  # every point inside the frame
+    for _ in range(5):
+        e.editor.sliders["dos.scale"].value += 0.01
+    assert (x_scale.min, x_scale.max, y_scale.min, y_scale.max) == frame
+    e.curves_view.representation.value = "θ_D(T)"
+    theta = e.curves_view.y_axis.scale
+    finite = _model_y(e)[np.isfinite(_model_y(e))]
+    assert theta.min < finite.min() and finite.max() < theta.max
+    e.curves_view.representation.value = "C"
+    e.curves_view.fit_axes.click()
+    assert e.curves_view.y_axis.scale.max < frame[3] or e.curves_view.y_axis.scale.max == pytest.approx(frame[3])

@@ -67,6 +67,11 @@ class HeatCapacityView(widgets.VBox):
         self.log_t = widgets.Checkbox(value=True, description="log T", indent=False)
         self.log_y = widgets.Checkbox(value=False, description="log C or S", indent=False)
         self.components = widgets.Checkbox(value=False, description="components", indent=False)
+        self.fit_axes = widgets.Button(description="fit axes", tooltip="frame every curve again",
+                                       layout=widgets.Layout(width="90px"))
+        self.fit_axes.add_class("mh-fit-axes")
+        self.fit_axes.on_click(lambda _: self._frame())
+        self._frame_key: tuple | None = None
         self.tmin = widgets.BoundedFloatText(description="fit from (K)", min=1e-6, max=1e9, value=1.0,
                                              layout=widgets.Layout(width="180px"))
         self.tmax = widgets.BoundedFloatText(description="to (K)", min=1e-6, max=1e9, value=1000.0,
@@ -103,7 +108,7 @@ class HeatCapacityView(widgets.VBox):
         )
         self.residual_figure.add_class("mh-residuals")
         self.children = [
-            widgets.HBox([self.representation, self.log_t, self.log_y, self.components]),
+            widgets.HBox([self.representation, self.log_t, self.log_y, self.components, self.fit_axes]),
             self.figure,
             self.residual_figure,
             widgets.HBox([self.tmin, self.tmax]),
@@ -132,6 +137,39 @@ class HeatCapacityView(widgets.VBox):
         self._draw_model(state, xcol, ycol, log_y)
         self._draw_spectra(state, xcol, ycol, log_y)
         self._draw_data(state, xcol, ycol, log_y)
+        # The frame follows what is shown, not a slider: while parameters move, the axes
+        # stay put so the curve moves against the data ("fit axes" frames it again).
+        model = state.model
+        key = (rep, log_x, log_y, state.atoms, state.show_components, *state.data, *state.spectra,
+               *(type(c).__name__ + c.name for c in (model.components if model is not None else ())))
+        if not same_objects(key, self._frame_key):
+            self._frame_key = key
+            self._frame()
+
+    def _frame(self) -> None:
+        """Set both scales' limits to hold every curve now on the figure (5 % margin)."""
+        xs, ys = [], []
+        # reference lines follow the curves; they do not set the frame
+        for mark in (m for m in self._marks() if m not in (self.dulong_petit, self.t3_law)):
+            x, y = np.asarray(mark.x, dtype=float).ravel(), np.asarray(mark.y, dtype=float)
+            if x.size and y.size:
+                xs.append(x)
+                ys.append(y.ravel())
+        for scale, values in ((self.x_axis.scale, xs), (self.y_axis.scale, ys)):
+            v = np.concatenate(values) if values else np.empty(0)
+            v = v[np.isfinite(v) & ((v > 0) if isinstance(scale, bq.LogScale) else True)]
+            if v.size == 0:
+                scale.min = scale.max = None
+                continue
+            lo, hi = float(v.min()), float(v.max())
+            if isinstance(scale, bq.LogScale):
+                pad = (hi / lo) ** 0.05 if hi > lo else 2.0
+                lo, hi = lo / pad, hi * pad
+            else:
+                pad = 0.05 * (hi - lo) if hi > lo else max(abs(hi), 1.0) * 0.05
+                lo, hi = lo - pad, hi + pad
+            with scale.hold_sync():
+                scale.min, scale.max = lo, hi
 
     def _draw_model(self, state, xcol: str, ycol: str, log_y: bool) -> None:
         model: Mixture | None = state.model
@@ -165,6 +203,11 @@ class HeatCapacityView(widgets.VBox):
             law = {"C": curves["T"] ** 3 * level, "C_over_T3": np.full(len(T), level),
                    "C_over_T": curves["T2"] * level}.get(ycol)
             show = law is not None and math.isfinite(level)
+            if show and ycol != "C_over_T3":
+                # a rising law (C ∝ T³, C/T ∝ T²) holds at low T only: drawn up to where it
+                # passes the model's highest value, so it never sets the scale of the figure
+                law = np.asarray(law, dtype=float)
+                law = np.where(law <= float(np.nanmax(curves[ycol].to_numpy())), law, np.nan)
             self.t3_law.x = x if show else []
             self.t3_law.y = compact(law, log_y) if show else []
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 import dataclasses
 import math
 import os
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
 
@@ -316,13 +316,9 @@ class Explorer(widgets.VBox):
 
     # --- the data and fit panels ----------------------------------------------------------------
     def _build_panels(self) -> list:
-        try:
-            from .data_panel import DataPanel
-            from .fit_panel import FitPanel
-        except ModuleNotFoundError as exc:  # until panels merge
-            if exc.name not in (f"{__package__}.data_panel", f"{__package__}.fit_panel"):
-                raise
-            return []
+        from .data_panel import DataPanel
+        from .fit_panel import FitPanel
+
         self.data_panel = DataPanel(self._on_spectrum, self._on_data, self.status)
         self.fit_panel = FitPanel(self._fit_problem, self._on_fit_result, self.status)
         return [self.data_panel, self.fit_panel]

@@ -9,17 +9,12 @@ itself is proved on a stand-in by ``test_browser_harness.py``.
 
 from __future__ import annotations
 
-import importlib.util
 from pathlib import Path
 
 import numpy as np
 import pytest
 from browser_steps import (axis_ticks, choose_representation, first_line_d, latency_summary,
                            line_y, open_and_run_all, press_and_time, report, upload_and_wait)
-
-
-def _explorer_available() -> bool:
-    return importlib.util.find_spec("modeheat.widgets.explorer") is not None
 
 
 pytestmark = pytest.mark.browser
@@ -31,7 +26,6 @@ PRESSES = 12
 ERROR_COLOUR = "rgb(163, 38, 27)"  # StatusArea's colour for problems (#a3261b)
 
 
-@pytest.mark.skipif(not _explorer_available(), reason="Explorer not merged yet")
 def test_explorer_demo_in_browser(lab_server, browser_page, tmp_path):
     page = browser_page
     open_and_run_all(page, lab_server, HERE / "explorer_demo.ipynb")
