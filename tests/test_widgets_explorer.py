@@ -14,6 +14,7 @@ import math
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 import pytest
 
 import modeheat as mh
@@ -312,3 +313,30 @@ def test_axes_stay_put_while_a_slider_moves():
     e.curves_view.representation.value = "C"
     e.curves_view.fit_axes.click()
     assert e.curves_view.y_axis.scale.max < frame[3] or e.curves_view.y_axis.scale.max == pytest.approx(frame[3])
+
+
+def test_panels_wired_upload_fit_and_export(tmp_path):
+    """The real data and fit panels inside the Explorer: an upload adds a data set, a fit
+    from the panel moves the sliders, and its parameter table and curves export as CSV."""
+    e = Explorer.demo()
+    text = (ROOT / "demo_spectra" / "zorbium_lumide_cp.txt").read_bytes()
+    e.data_panel.load_bytes("data", "second_run.txt", text)
+    assert len(e.state.data) == 2 and "second_run.txt" in e.status.message
+    e.data_panel.load_bytes("data", "broken.txt", b"T C\n1 0.1\n2 x\n")
+    assert e.status.kind == "error" and "broken.txt, line 3" in e.status.message
+    assert len(e.state.data) == 2  # a failed upload changes nothing
+    result = e.fit_panel.run(wait=True)
+    assert result is not None and e.fit_panel.result is result
+    assert e.editor.sliders["dos.scale"].value == pytest.approx(result.params["dos.scale"])
+    assert e.state.model["dos"].scale == pytest.approx(result.params["dos.scale"])
+    written = e.export_fit_csv(tmp_path / "fit.csv")
+    lines = written.read_text(encoding="utf-8").splitlines()
+    assert any(line.startswith("# caution: ") for line in lines)
+    table = pd.read_csv(written, comment="#")
+    assert list(table.columns) == ["parameter", "value", "stderr", "unit", "status"]
+    row = table.set_index("parameter").loc["dos.scale"]
+    assert row["value"] == pytest.approx(result.params["dos.scale"]) and row["status"] == "varied"
+    curves = pd.read_csv(e.export_csv(tmp_path / "curves.csv"), comment="#")
+    np.testing.assert_allclose(curves["C"], temperature_curves(e.state.model, e.state.temperatures())["C"], rtol=1e-10)
+    with pytest.raises(mh.InputError, match="no fit to export"):
+        Explorer().export_fit_csv(tmp_path / "none.csv")

@@ -185,6 +185,19 @@ class FitResult(Documented):
         fit_text = f"χ²_red = {self.chi2_red:.3g}" if self.weighted else f"unweighted, scatter {self.scatter:.3g} J/(mol K)"
         return f"<FitResult {comps}: {self.n_points} points, {fit_text}, quality {self.quality.verdict}>"
 
+    def parameter_table(self) -> pd.DataFrame:
+        """One row per parameter: ``parameter``, ``value``, ``stderr`` (NaN when fixed),
+        ``unit`` and ``status`` ("varied", "fixed", "… (at its bound)"); what the report
+        prints and the views show."""
+        rows = []
+        for key, value in self.params.items():
+            status = "varied" if key in self.varied else "fixed"
+            if key in self.at_bound:
+                status += " (at its bound)"
+            unit = _UNITS.get(key.split(".", 1)[1], "")
+            rows.append((key, float(value), float(self.stderr[key]), unit, status))
+        return pd.DataFrame(rows, columns=["parameter", "value", "stderr", "unit", "status"])
+
     def report(self) -> str:
         """The fit as a readable text table, with its quality, the notes that matter and the caution."""
         comps = " + ".join(c.name for c in self.model.components)
@@ -198,14 +211,9 @@ class FitResult(Documented):
             "",
             f"{'parameter':<24} {'value':>14} {'± stderr':>12}  {'unit':<11} status",
         ]
-        for key, value in self.params.items():
-            status = "varied" if key in self.varied else "fixed"
-            if key in self.at_bound:
-                status += " (at its bound)"
-            err = self.stderr[key]
-            err_text = "—" if math.isnan(err) else f"{err:.3g}"
-            unit = _UNITS.get(key.split(".", 1)[1], "")
-            lines.append(f"{key:<24} {value:>14.6g} {err_text:>12}  {unit:<11} {status}")
+        for row in self.parameter_table().itertuples(index=False):
+            err_text = "—" if math.isnan(row.stderr) else f"{row.stderr:.3g}"
+            lines.append(f"{row.parameter:<24} {row.value:>14.6g} {err_text:>12}  {row.unit:<11} {row.status}")
         lines.append("")
         q = self.quality
         if self.weighted:

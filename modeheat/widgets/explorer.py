@@ -22,7 +22,8 @@ import pandas as pd
 from ..errors import InputError
 from ..io import read_heat_capacity, read_spectrum
 from ..io.sessions import load_session, save_session, to_dict
-from ..io.tables import write_table
+from ..io.tables import write_table, write_text_file
+from ..thermo import CAUTION
 from ..models import Component, Dilatation, Electronic, Mixture, PhononDOS
 from ..representations import temperature_curves
 from ..spectrum import Spectrum
@@ -411,6 +412,27 @@ class Explorer(widgets.VBox):
             No model, or a destination that exists or cannot be written.
         """
         return write_table(self.curves(), path, overwrite=overwrite)
+
+    def export_fit_csv(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
+        """Write the last fit's parameter table (value, standard error, unit, status) as CSV,
+        with the fit's components, χ²_red, quality and the caution as ``#`` lines.
+
+        Raises
+        ------
+        InputError
+            No fit has finished yet, or a destination that exists or cannot be written.
+        """
+        result = getattr(self, "fit_panel", None) and self.fit_panel.result
+        if result is None:
+            raise InputError("there is no fit to export yet: tick parameters to vary and press Fit")
+        head = [
+            "# modeheat fit parameters",
+            f"# caution: {CAUTION}",
+            f"# model: {' + '.join(c.name for c in result.model.components)}",
+            f"# chi2_red: {result.chi2_red:.6g}; quality: {result.quality.verdict}; points: {result.n_points}",
+        ]
+        text = "\n".join(head) + "\n" + result.parameter_table().to_csv(index=False, lineterminator="\n")
+        return write_text_file(path, text, overwrite=overwrite)
 
     # --- the demo -----------------------------------------------------------------------------------
     @classmethod

@@ -180,18 +180,17 @@ def parameter_table(result: FitResult) -> str:
     Returns
     -------
     str
-        One row per parameter (value, ± standard error in the parameter's own unit,
+        One row per parameter (value, ± standard error, the unit,
         varied or fixed), then the correlation matrix of the varied parameters.
     """
     rows = []
-    for key, value in result.params.items():
-        err = result.stderr[key]
-        err_text = "—" if math.isnan(err) else f"± {err:.3g}"
-        state = "varied" if key in result.varied else "fixed"
-        if key in result.at_bound:
-            state += " (at its bound)"
-        rows.append(f"<tr><td>{html.escape(key)}</td><td>{value:.6g}</td><td>{err_text}</td><td>{state}</td></tr>")
-    head = "<tr><th>parameter</th><th>value</th><th>± stderr</th><th></th></tr>"
+    for row in result.parameter_table().itertuples(index=False):
+        err_text = "—" if math.isnan(row.stderr) else f"± {row.stderr:.3g}"
+        rows.append(
+            f"<tr><td>{html.escape(row.parameter)}</td><td>{row.value:.6g}</td><td>{err_text}</td>"
+            f"<td>{html.escape(row.unit)}</td><td>{html.escape(row.status)}</td></tr>"
+        )
+    head = "<tr><th>parameter</th><th>value</th><th>± stderr</th><th>unit</th><th></th></tr>"
     out = f'<table class="mh-fit-parameters">{head}{"".join(rows)}</table>'
     corr = result.correlation
     if len(corr) > 1:
