@@ -77,3 +77,13 @@ def test_breakdown_benchmark_prints_times(capsys):
     print(out)
     # speed is reported, not asserted; the breakdown tabulates the one public θ_D(T), bit for bit
     assert "target" in out and times["breakdown_s"] > 0 and times["same_theta"] == 1.0
+
+
+def test_explorer_benchmark_prints_slider_times(capsys):
+    from bench_explorer import main
+
+    times = main()
+    out = capsys.readouterr().out
+    print(out)
+    # the kernel-side time of a slider move is reported, not asserted (shared machine)
+    assert "target" in out and times["mixture_s"] > 0 and times["dos_s"] > 0
