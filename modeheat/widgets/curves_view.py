@@ -62,11 +62,15 @@ class HeatCapacityView(widgets.VBox):
 
     def __init__(self, **kwargs):
         super().__init__(**kwargs)
-        self.representation = widgets.Dropdown(options=list(REPRESENTATIONS), value="C", description="show")
+        self.representation = widgets.Dropdown(options=list(REPRESENTATIONS), value="C", description="show",
+                                               layout=widgets.Layout(width="190px"))
         self.representation.add_class("mh-representation")
-        self.log_t = widgets.Checkbox(value=True, description="log T", indent=False)
-        self.log_y = widgets.Checkbox(value=False, description="log C or S", indent=False)
-        self.components = widgets.Checkbox(value=False, description="components", indent=False)
+        self.log_t = widgets.Checkbox(value=True, description="log T", indent=False,
+                                      layout=widgets.Layout(width="auto"))
+        self.log_y = widgets.Checkbox(value=False, description="log C or S", indent=False,
+                                      layout=widgets.Layout(width="auto"))
+        self.components = widgets.Checkbox(value=False, description="components", indent=False,
+                                      layout=widgets.Layout(width="auto"))
         self.fit_axes = widgets.Button(description="fit axes", tooltip="frame every curve again",
                                        layout=widgets.Layout(width="90px"))
         self.fit_axes.add_class("mh-fit-axes")
@@ -90,7 +94,7 @@ class HeatCapacityView(widgets.VBox):
         self.t3_law = bq.Lines(x=[], y=[], scales=sc, colors=["#999999"], line_style="dash_dotted")
         self.data_points: list[bq.Scatter] = []
         self.error_bars: list[bq.Lines] = []
-        self.x_axis = bq.Axis(scale=sc["x"], label="T (K)")
+        self.x_axis = bq.Axis(scale=sc["x"], label="T (K)", tick_format=".3~g")
         self.y_axis = bq.Axis(scale=sc["y"], side="left", label="C (J/mol K)")
         self.figure = bq.Figure(marks=self._marks(), axes=[self.x_axis, self.y_axis], title="heat capacity",
                                 fig_margin=dict(top=30, bottom=45, left=70, right=15),
@@ -101,7 +105,7 @@ class HeatCapacityView(widgets.VBox):
         self.residual_zero = bq.Lines(x=[], y=[], scales=rs, colors=["#999999"])
         self.residual_figure = bq.Figure(
             marks=[self.residual_zero, self.residual_points],
-            axes=[bq.Axis(scale=rs["x"], label="T (K)"),
+            axes=[bq.Axis(scale=rs["x"], label="T (K)", tick_format=".3~g"),
                   bq.Axis(scale=rs["y"], side="left", label="data − model")],
             fig_margin=dict(top=10, bottom=40, left=70, right=15),
             layout=widgets.Layout(width="560px", height="170px", display="none"),

@@ -222,10 +222,14 @@ class Explorer(widgets.VBox):
         self.redo_button.on_click(lambda _: self.redo())
         self._watch_controls()
         self.panels = self._build_panels()
+        for view in (self.spectrum_view, self.curves_view):
+            view.layout.flex = "0 0 auto"  # each as wide as its figure, so the two fit side by side
         self.children = [
             widgets.HTML("<b>modeheat Explorer</b> — heat capacity from branches and a density of states"),
             widgets.HBox([self.undo_button, self.redo_button]),
-            widgets.HBox([self.spectrum_view, self.curves_view]),
+            # side by side where the notebook is wide enough, one under the other where not
+            widgets.Box([self.spectrum_view, self.curves_view], layout=widgets.Layout(flex_flow="row wrap",
+                                                                                      align_items="flex-start")),
             self.editor,
             *self.panels,
             self.status,

@@ -26,8 +26,10 @@ class SpectrumView(widgets.VBox):
 
     def __init__(self, **kwargs):
         super().__init__(**kwargs)
-        self.unit = widgets.Dropdown(options=list(UNITS), value="THz", description="frequency in")
-        self.reduced = widgets.ToggleButtons(options=[("g(ω)", False), ("g/ω²", True)], value=False)
+        self.unit = widgets.Dropdown(options=list(UNITS), value="THz", description="unit",
+                                     layout=widgets.Layout(width="150px"))
+        self.reduced = widgets.ToggleButtons(options=[("g(ω)", False), ("g/ω²", True)], value=False,
+                                             style=widgets.ToggleButtonsStyle(button_width="60px"))
         self.reduced.add_class("mh-reduced")
         self._sc = {"x": bq.LinearScale(min=0.0), "y": bq.LinearScale(min=0.0)}
         self.model_line = bq.Lines(x=[], y=[], scales=self._sc, colors=[PALETTE[0]], stroke_width=2.5)
@@ -37,8 +39,8 @@ class SpectrumView(widgets.VBox):
         self.x_axis = bq.Axis(scale=self._sc["x"], label="frequency (THz)")
         self.y_axis = bq.Axis(scale=self._sc["y"], side="left", label="modes per THz")
         self.figure = bq.Figure(marks=[self.model_line, self.debye_level], axes=[self.x_axis, self.y_axis],
-                                title="density of states", fig_margin=dict(top=30, bottom=45, left=70, right=15),
-                                layout=widgets.Layout(width="520px", height="380px"))
+                                title="density of states", fig_margin=dict(top=30, bottom=45, left=60, right=15),
+                                layout=widgets.Layout(width="400px", height="380px"))
         self.figure.add_class("mh-spectrum")
         self.children = [widgets.HBox([self.unit, self.reduced]), self.figure]
 

@@ -9,6 +9,7 @@ itself is proved on a stand-in by ``test_browser_harness.py``.
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 import numpy as np
@@ -32,6 +33,10 @@ def test_explorer_demo_in_browser(lab_server, browser_page, tmp_path):
     page.locator(f"{FIGURE} path.line").first.wait_for(state="visible")
     page.locator(".mh-spectrum").first.wait_for(state="visible")
 
+    picture = os.environ.get("MODEHEAT_EXPLORER_PICTURE")
+    if picture:  # the README's picture: MODEHEAT_EXPLORER_PICTURE=PATH python -m pytest tests/browser
+        page.set_viewport_size({"width": 1400, "height": 1600})
+        page.locator(".mh-explorer").first.screenshot(path=picture)
     ticks = axis_ticks(page, FIGURE)
     latencies, paths = press_and_time(page, FIGURE, ".mh-param-dos-scale .noUi-handle", PRESSES)
     # Pixels compare like C only while the axes stay put; the contract keeps them fixed
