@@ -15,6 +15,9 @@ the output could not be written, 2 for bad usage.  Standard output carries only 
 table (with ``-o``, a one-line summary); warnings, the basis, the caution and
 progress go to standard error.
 
+The commands ``lab``, ``demo``, ``lowt`` and ``figure`` live in :mod:`modeheat.commands`
+and follow the same conventions.
+
 The backend (numpy, pandas, scipy) is imported inside the command, so ``modeheat
 --help`` starts quickly.
 """
@@ -208,15 +211,28 @@ examples:
   modeheat table a.txt b.txt c.txt --per atom --jobs 3 -o batch.csv"""
 
 
+_TOP_EPILOG = """\
+exit status:
+  0 success; 1 bad input (with several files: any file failed, the others'
+  results are still written); 2 bad usage.  'modeheat COMMAND --help' tells
+  more; 'modeheat table --help' gives the spectrum file format.
+
+examples:
+  modeheat lab                                  # the notebooks in JupyterLab
+  modeheat demo --out demo-results              # the whole job headless
+  modeheat table spectrum.txt --atoms 2         # thermodynamic table
+  modeheat lowt cp.txt --tmax 5                 # γ, β, θ_D(0) from C_p
+  modeheat figure --dos dos.txt --cp cp.txt -o fig.pdf"""
+
+
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser of the ``modeheat`` command."""
     parser = argparse.ArgumentParser(
         prog="modeheat",
         description="Heat capacity, entropy, energy, free energy and the effective Debye "
         "temperature from a phonon density of states.",
-        epilog="Exit status: 0 success; 1 bad input (with several files: any file failed, "
-        "the others' results are still written); 2 bad usage.  "
-        "Run 'modeheat table --help' for the spectrum file format.",
+        epilog=_TOP_EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument(
         "--version", action=_VersionAction, help="print the version of modeheat and exit"
@@ -306,6 +322,9 @@ def build_parser() -> argparse.ArgumentParser:
         help="worker processes for several files (default: one per file, at most the CPU count)",
     )
     table.set_defaults(run=_table, check=_check_table_args, usage=table)
+    from .commands import add_commands
+
+    add_commands(commands)
     return parser
 
 
