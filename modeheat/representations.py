@@ -14,7 +14,8 @@ A view picks columns and assigns them to marks; it does no numerics itself.
   Einstein modes are drawn as Gaussian peaks of a stated width, continua are binned
   from their exact cumulative mode counts, and every column carries its exact mode
   count on the grid (Σ density × step = modes);
-- :func:`reduced_dos` — g/ω² on that grid with the Debye level 9·atoms/θ_D(0)³.
+- :func:`reduced_dos` — g/ω² on that grid with the Debye level 9·atoms/θ_D(0)³;
+- :func:`data_residuals` — measured C minus the model at the data's temperatures.
 """
 
 from __future__ import annotations
@@ -34,7 +35,7 @@ from .spectrum import Spectrum
 from .thermo import _modeset, _scale, _temperatures, atoms_of_data, effective_debye_temperature, thermo
 from .units import R, check_unit, kelvin_per
 
-__all__ = ["temperature_curves", "contributions", "plot_dos", "reduced_dos", "T3_LAW", "MAX_POINTS"]
+__all__ = ["temperature_curves", "contributions", "plot_dos", "reduced_dos", "data_residuals", "T3_LAW", "MAX_POINTS"]
 
 #: C_v/T³ of a Debye solid at T ≪ θ_D per mole of atoms is T3_LAW·R/θ_D³ (Debye's T³ law).
 T3_LAW: float = 12.0 * math.pi**4 / 5.0
@@ -162,17 +163,21 @@ def _curve_units(a: str) -> dict[str, str]:
     }
 
 
-def _data_curves(data: pd.DataFrame, temperatures, theta_D0) -> pd.DataFrame:
-    if temperatures is not None:
-        raise InputError("heat-capacity data carry their own temperatures: leave temperatures out")
+def _measured(data: pd.DataFrame) -> tuple[np.ndarray, np.ndarray]:
+    """T [K] and C [J/(mol K)] of heat-capacity data, checked."""
     missing = [c for c in ("T", "C") if c not in data.columns]
     if missing:
         raise InputError(
             f"heat-capacity data need columns T and C (as read_heat_capacity returns); missing {', '.join(missing)}"
         )
+    return _temperatures(data["T"].to_numpy(dtype=float), zero=False), data["C"].to_numpy(dtype=float)
+
+
+def _data_curves(data: pd.DataFrame, temperatures, theta_D0) -> pd.DataFrame:
+    if temperatures is not None:
+        raise InputError("heat-capacity data carry their own temperatures: leave temperatures out")
+    T, C = _measured(data)
     atoms, _ = atoms_of_data(data)
-    T = _temperatures(data["T"].to_numpy(dtype=float), zero=False)
-    C = data["C"].to_numpy(dtype=float)
     theta = effective_debye_temperature(T, C, atoms=atoms)
     columns = {"T": T, "C": C, "C_over_T3": C / T**3, "C_over_T": C / T, "T2": T * T, "theta_D": theta}
     units = _curve_units("mol")
@@ -419,4 +424,39 @@ def reduced_dos(source, *, unit: str = "THz", points: int = MAX_POINTS, width: f
         theta_D0=theta0,
         source=getattr(source, "name", None),
     )
+    return frame
+
+
+# --- data against a model --------------------------------------------------------------------------
+
+def data_residuals(source, data: pd.DataFrame) -> pd.DataFrame:
+    """Measured heat capacity minus the model's, at the data's own temperatures.
+
+    The model is compared as the fit compares it (:func:`~modeheat.fit`): its C_v,
+    turned into C_p by its :class:`~modeheat.Dilatation` term when it has one.
+
+    Parameters
+    ----------
+    source : Spectrum, component or Mixture — the model (per mole of formula units)
+    data : DataFrame — heat-capacity data as :func:`~modeheat.io.read_heat_capacity`
+        returns them (``T`` [K], ``C`` [J/(mol K)], optional ``sigma``)
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``T`` [K], ``C``, ``model`` and ``residual`` = C − model [J/(mol K)], and
+        ``sigma`` [J/(mol K)] when the data have it.  ``attrs``: ``units``, ``source``.
+    """
+    # the fit's own C_p of a model, so the residuals drawn are the ones it minimises;
+    # imported here to keep scipy.optimize out of the plain curves
+    from .fitting.model_fit import _as_mixture, _model_cp
+
+    T, C = _measured(data)
+    model = _model_cp(_as_mixture(source), T)
+    frame = pd.DataFrame({"T": T, "C": C, "model": model, "residual": C - model})
+    units = {"T": "K", "C": "J/(mol K)", "model": "J/(mol K)", "residual": "J/(mol K)"}
+    if "sigma" in data.columns:
+        frame["sigma"] = data["sigma"].to_numpy(dtype=float)
+        units["sigma"] = "J/(mol K)"
+    frame.attrs.update(units=units, source=data.attrs.get("name"))
     return frame

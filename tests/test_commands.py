@@ -1,8 +1,4 @@
-"""The commands around the notebooks and figures: lab, demo, lowt and figure.
-
-Tests that draw figures need :mod:`modeheat.figures`, written on another branch; until it
-is merged they are skipped by the FIGURES mark (the integrator removes the mark).
-"""
+"""The commands around the notebooks and figures: lab, demo, lowt and figure."""
 
 from __future__ import annotations
 
@@ -26,9 +22,6 @@ from modeheat.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "demo_spectra"
-FIGURES = pytest.mark.skipif(
-    importlib.util.find_spec("modeheat.figures") is None, reason="figures not merged yet"
-)
 
 
 def _sync_module():
@@ -289,7 +282,6 @@ def test_figure_refuses_existing_output_before_reading(tmp_path, capsys):
     assert "does not exist" in capsys.readouterr().err
 
 
-@FIGURES
 def test_demo_writes_tables_figures_and_summary(tmp_path, capsys):
     out = tmp_path / "results"
     assert main(["demo", "--out", str(out)]) == 0
@@ -308,7 +300,6 @@ def test_demo_writes_tables_figures_and_summary(tmp_path, capsys):
     assert main(["demo", "--out", str(out), "--overwrite"]) == 0
 
 
-@FIGURES
 @pytest.mark.parametrize("inputs", [["--dos", "zorbium_lumide_dos.txt", "--cp", "zorbium_lumide_cp.txt"],
                                     ["--cp", "quellium_cp.txt"], ["--dos", "quellium_dos.txt"]])
 def test_figure_from_files(inputs, tmp_path, capsys):

@@ -50,8 +50,8 @@ def write_table(frame: pd.DataFrame, path: str | os.PathLike, *, overwrite: bool
     return write_text_file(path, _table_text(frame), overwrite=overwrite)
 
 
-def write_text_file(path: str | os.PathLike, text: str, *, overwrite: bool = False) -> Path:
-    """Write UTF-8 text to a new file, atomically; the way every modeheat file is written.
+def write_text_file(path: str | os.PathLike, text: str | bytes, *, overwrite: bool = False) -> Path:
+    """Write UTF-8 text (or bytes) to a new file, atomically; the way every modeheat file is written.
 
     The text goes to a temporary file in the same folder that is renamed into place, so
     an interrupted write leaves any earlier file intact; without `overwrite` an existing
@@ -60,7 +60,8 @@ def write_text_file(path: str | os.PathLike, text: str, *, overwrite: bool = Fal
     Parameters
     ----------
     path : str or os.PathLike — the file to write
-    text : str — its whole content
+    text : str or bytes — its whole content (str is written as UTF-8, bytes as they are:
+        figures go through here too)
     overwrite : bool — replace an existing regular file (by default that is an error)
 
     Returns
@@ -85,8 +86,8 @@ def write_text_file(path: str | os.PathLike, text: str, *, overwrite: bool = Fal
     try:
         # os.open with mode 0o666 lets the umask give the file the permissions of any new file.
         fd = os.open(temporary, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666)
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as handle:
-            handle.write(text)
+        with os.fdopen(fd, "wb") as handle:
+            handle.write(text.encode("utf-8") if isinstance(text, str) else text)
             handle.flush()
             os.fsync(handle.fileno())
         if overwrite:

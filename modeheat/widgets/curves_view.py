@@ -9,14 +9,13 @@ import bqplot as bq
 import ipywidgets as widgets
 import numpy as np
 
+from ..figures import PALETTE  # one palette for views and figures
 from ..models import Dilatation, Mixture
 from ..representations import contributions, temperature_curves
 from ..units import R
 
 __all__ = ["HeatCapacityView", "REPRESENTATIONS", "PALETTE", "compact", "model_cp", "same_objects"]
 
-#: A colour-blind-safe palette of our own choosing (distinct in hue and lightness).
-PALETTE = ["#1f3b73", "#d9822b", "#3a9e8f", "#b3478f", "#7a7a00", "#5fa8e0", "#8c5a2b", "#555555"]
 
 #: Representation label → (x column, y column, y label); labels are the selector's options.
 REPRESENTATIONS: dict[str, tuple[str, str, str]] = {

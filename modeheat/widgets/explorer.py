@@ -41,6 +41,8 @@ DEFAULT_RANGE = (1.0, 1000.0)
 #: Undo keeps at most this many states.
 UNDO_DEPTH = 200
 _VIEW = "view settings"
+#: The curves view's representation → the kind modeheat.figures draws it as.
+_FIGURE_KINDS = {"C": "C", "C/T³": "C/T3", "C/T vs T²": "C/T vs T2", "θ_D(T)": "theta_D", "S": "S"}
 _START = "To start: load a DOS or heat-capacity file below, or add a branch (Debye, Einstein, …) with “Add”."
 
 
@@ -220,13 +222,19 @@ class Explorer(widgets.VBox):
         self.redo_button = widgets.Button(description="redo", icon="repeat")
         self.undo_button.on_click(lambda _: self.undo())
         self.redo_button.on_click(lambda _: self.redo())
+        self.figure_name = widgets.Text(value="modeheat_figure.pdf", description="figure file",
+                                        tooltip="a .pdf, .svg or .png name, or a stem for all three")
+        self.figure_name.add_class("mh-figure-name")
+        self.save_figure_button = widgets.Button(description="save figure", icon="save")
+        self.save_figure_button.add_class("mh-save-figure")
+        self.save_figure_button.on_click(lambda _: self._on_save_figure())
         self._watch_controls()
         self.panels = self._build_panels()
         for view in (self.spectrum_view, self.curves_view):
             view.layout.flex = "0 0 auto"  # each as wide as its figure, so the two fit side by side
         self.children = [
             widgets.HTML("<b>modeheat Explorer</b> — heat capacity from branches and a density of states"),
-            widgets.HBox([self.undo_button, self.redo_button]),
+            widgets.HBox([self.undo_button, self.redo_button, self.figure_name, self.save_figure_button]),
             # side by side where the notebook is wide enough, one under the other where not
             widgets.Box([self.spectrum_view, self.curves_view], layout=widgets.Layout(flex_flow="row wrap",
                                                                                       align_items="flex-start")),
@@ -416,6 +424,30 @@ class Explorer(widgets.VBox):
             No model, or a destination that exists or cannot be written.
         """
         return write_table(self.curves(), path, overwrite=overwrite)
+
+    def save_figure(self, path: str | os.PathLike, *, overwrite: bool = False) -> list[Path]:
+        """Draw the current representation of the model, the loaded spectra and the data
+        as a paper figure (:func:`~modeheat.figures.curve_figure`, single column) and write
+        it (:func:`~modeheat.figures.save_figure`: a .pdf, .svg or .png name, or a stem for all three).
+
+        Raises
+        ------
+        InputError
+            Nothing to draw, or a destination that exists or cannot be written.
+        """
+        from ..figures import curve_figure, save_figure
+
+        s = self.state
+        sources = {} if s.model is None else {"model": s.model}
+        sources |= {sp.name or f"DOS {i + 1}": sp for i, sp in enumerate(s.spectra)}
+        fig = curve_figure(sources, _FIGURE_KINDS[s.representation], data=list(s.data),
+                           temperatures=s.temperatures(), log_t=s.log_t)
+        return save_figure(fig, path, overwrite=overwrite)
+
+    def _on_save_figure(self) -> None:
+        with self.status.guard("saving the figure"):
+            written = self.save_figure(self.figure_name.value.strip())
+            self.status.info("saved the figure: " + ", ".join(p.name for p in written))
 
     def export_fit_csv(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
         """Write the last fit's parameter table (value, standard error, unit, status) as CSV,
