@@ -33,6 +33,9 @@ from browser_steps import CHROMIUM, CHROMIUM_ARGS, REPORT, LabServer
 
 __all__: list[str] = []
 
+# These notebooks are driven in the browser by the tests here; nbval (--nbval-lax) runs only notebooks/.
+collect_ignore_glob = ["*.ipynb"]
+
 SERVER_START_TIMEOUT = 90.0  # s: 2–4 s here; generous for a loaded CI machine
 
 
