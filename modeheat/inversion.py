@@ -36,6 +36,7 @@ from scipy.optimize import nnls
 from .engine.special import einstein_terms
 from .errors import InputError, ModeheatWarning
 from .fitting._points import _points
+from .models import PhononDOS
 from .progress import Progress, ProgressCallback, drive
 from .spectrum import Spectrum
 from .thermo import atoms_of_data
@@ -133,7 +134,7 @@ def _measured(data) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         )
     if sigma is None:
         warnings.warn(
-            f"the data carry no sigma column: σ is taken as {_SIGMA_FALLBACK:.0%} of C",
+            f"the data carry no sigma column: σ is taken as {100 * _SIGMA_FALLBACK:g} % of C",
             InversionWarning,
             stacklevel=4,
         )
@@ -166,13 +167,12 @@ def _kernel(T: np.ndarray, edges: np.ndarray) -> np.ndarray:
 
 
 def _prior_counts(prior, edges: np.ndarray, modes: float) -> np.ndarray:
+    """The prior's mode counts in the bins (edges in K), scaled to `modes`."""
+    if isinstance(prior, Spectrum):
+        prior = PhononDOS(prior)
     get = getattr(prior, "cumulative", None)
     if get is None:
-        spectrum_like = getattr(prior, "modeset", None)
-        raise InputError(
-            "prior must be a Spectrum, a model component or a Mixture"
-            + ("" if spectrum_like is None else " with a cumulative mode count")
-        )
+        raise InputError(f"prior must be a Spectrum, a model component or a Mixture, not {type(prior).__name__}")
     cum = np.asarray(get(edges), dtype=float)
     counts = np.clip(np.diff(cum), 0.0, None)
     counts[-1] += max(modes - float(counts.sum()), 0.0)  # the prior's modes above the grid go in the top bin
