@@ -156,3 +156,12 @@ def test_bad_data(change, match):
 def test_bad_options(options):
     with pytest.raises(InputError):
         invert_heat_capacity(_data(0), **options)
+
+
+@pytest.mark.parametrize("width, inches", [("double", 7.0), ("single", 3.4)])
+def test_inversion_figure_size(width, inches):
+    from modeheat.figures import inversion_figure
+
+    fig = inversion_figure(_result(0), width=width)
+    assert fig.get_size_inches()[0] == pytest.approx(inches)  # journal column widths, common practice
+    assert len(fig.axes) == 3
