@@ -30,7 +30,6 @@ from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
-from scipy.linalg import null_space
 from scipy.optimize import nnls
 
 from .engine.special import einstein_terms
@@ -201,11 +200,20 @@ def _diagnostics(system: _System, alpha: float, x: np.ndarray) -> tuple[float, f
     """Residual χ², penalty norm² and the effective number of parameters (influence trace)."""
     free = x > 0
     A, P = system.A[:, free], system.P[:, free]
-    # the mode-count row is a constraint: the influence matrix lives on its null space
-    Z = null_space(system.S[free][None, :]) if system.S[free].any() else np.eye(int(free.sum()))
-    AZ, PZ = A @ Z, P @ Z
-    G = AZ.T @ AZ
-    trace = float(np.trace(np.linalg.pinv(G + alpha**2 * (PZ.T @ PZ), hermitian=True) @ G))
+    G = A.T @ A
+    # the mode-count row is a constraint: the influence matrix A·X·Aᵀ takes X from the
+    # bordered (KKT) system [[G + α²PᵀP, sᵀ], [s, 0]], whose top-left block of the inverse is X
+    s = system.S[free]
+    m = G.shape[0]
+    kkt = np.zeros((m + 1, m + 1))
+    kkt[:m, :m] = G + alpha**2 * (P.T @ P)
+    kkt[:m, m] = kkt[m, :m] = s / float(np.abs(s).max())  # some bin is always free: Σw = 3·atoms > 0
+    rhs = np.vstack([G, np.zeros((1, m))])
+    try:
+        solved = np.linalg.solve(kkt, rhs)
+    except np.linalg.LinAlgError:  # a free set the penalty does not pin down: the least-squares inverse
+        solved = np.linalg.lstsq(kkt, rhs, rcond=None)[0]
+    trace = float(np.trace(solved[:m]))
     chi2 = float(np.sum((system.A @ x - system.b) ** 2))
     seminorm = float(np.sum((system.P @ x - system.p) ** 2))
     return chi2, seminorm, trace
