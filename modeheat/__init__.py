@@ -64,6 +64,10 @@ __all__ = [
     "FitWarning",
     "debye_breakdown",
     "DebyeBreakdown",
+    # heat capacity back to a phonon DOS
+    "invert_heat_capacity",
+    "InversionResult",
+    "InversionWarning",
     # spring-model lattices (a subpackage); plot-ready curves for views and figures (a module)
     "lattice",
     "representations",
@@ -110,6 +114,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
         "thermo",
         "zero_point_energy",
     ),
+    "inversion": ("InversionResult", "InversionWarning", "invert_heat_capacity"),
     "cp_cv": ("cp_from_cv", "cv_from_cp", "nernst_lindemann_coefficient"),
     "io": ("HeatCapacityWarning", "read_heat_capacity", "read_spectrum", "write_table"),
     "fitting": (
@@ -125,7 +130,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
 }
 _LAZY = {name: module for module, names in _HOMES.items() for name in names}
 # Submodules and subpackages reachable as attributes (``modeheat.io``); lattice, representations and progress are in __all__.
-_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "io", "lattice", "models", "progress", "representations", "spectrum", "units")
+_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "inversion", "io", "lattice", "models", "progress", "representations", "spectrum", "units")
 
 
 def _version() -> str:

@@ -10,6 +10,8 @@ backend.  Widths follow journal columns (:data:`WIDTHS`, inches).
   reference lines that apply (3·atoms·R, the T³ law, the Debye level of g/ω²);
 - :func:`paper_figure` — the DOS and the reduced DOS, C/T³ and θ_D(T)
   against T, with data and a residual panel when data are given;
+- :func:`inversion_figure` — a DOS recovered from heat capacity with its band, the fit
+  and its normalised residuals (:func:`modeheat.invert_heat_capacity`);
 - :func:`save_figure` — PDF and SVG (vector; TrueType fonts embedded in the PDF,
   ``pdf.fonttype`` 42; glyphs as paths in the SVG, ``svg.fonttype`` "path") and PNG at
   300 dpi, never overwriting a file unless asked, the caution in the metadata.
@@ -35,7 +37,7 @@ from .representations import data_residuals, plot_dos, reduced_dos, temperature_
 from .thermo import CAUTION
 from .units import R, check_unit
 
-__all__ = ["WIDTHS", "PALETTE", "KINDS", "FORMATS", "curve_figure", "paper_figure", "save_figure"]
+__all__ = ["WIDTHS", "PALETTE", "KINDS", "FORMATS", "curve_figure", "paper_figure", "inversion_figure", "save_figure"]
 
 #: Figure widths in inches: one journal column and the full page width.
 WIDTHS: dict[str, float] = {"single": 3.4, "double": 7.0}
@@ -358,6 +360,66 @@ def paper_figure(
             ax.set_title(f"({letter})", loc="left", fontweight="bold")
     return fig
 
+
+
+def inversion_figure(result, *, width="double") -> Figure:
+    """A DOS recovered from heat capacity: the DOS with its band, the fit and residuals.
+
+    Parameters
+    ----------
+    result : InversionResult — from :func:`modeheat.invert_heat_capacity`
+    width : "single", "double" or float — panels side by side at double width (7 in),
+        stacked at single width (3.4 in) or below 5 in
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        (a) the DOS in modes per THz against THz with the band (when made), (b) C
+        against T with the fit, (c) the residuals in units of σ.
+
+    Raises
+    ------
+    InputError
+        `result` is not an inversion result, or an unknown width.
+    """
+    for name in ("edges", "density", "band_low", "band_high", "fitted"):
+        if not hasattr(result, name):
+            raise InputError(f"inversion_figure needs an InversionResult, not {type(result).__name__}")
+    w = _width(width)
+    fitted = result.fitted
+    with mpl.rc_context(_STYLE):
+        if w >= 5.0:
+            fig = Figure(figsize=(w, 0.4 * w), layout="constrained")
+            grid = fig.add_gridspec(2, 2, height_ratios=[3, 1.5])
+            cells = [grid[:, 0], grid[0, 1], grid[1, 1]]
+        else:
+            fig = Figure(figsize=(w, 0.6 * 7.5), layout="constrained")
+            grid = fig.add_gridspec(3, 1, height_ratios=[3, 3, 1.5])
+            cells = [grid[0], grid[1], grid[2]]
+        dos_ax, c_ax, res_ax = (fig.add_subplot(c) for c in cells)
+        edges = np.asarray(result.edges)
+        if np.isfinite(result.band_low).all():
+            dos_ax.fill_between(edges, np.append(result.band_low, result.band_low[-1]),
+                                np.append(result.band_high, result.band_high[-1]), step="post",
+                                color=PALETTE[0], alpha=0.25, linewidth=0, label="68 % band")
+        dos_ax.stairs(result.density, edges, color=PALETTE[0], label="recovered")
+        dos_ax.set_xscale("log")
+        dos_ax.set_xlabel(r"$\nu$ (THz)")
+        dos_ax.set_ylabel(r"$g(\nu)$ (THz$^{-1}$)")
+        dos_ax.legend()
+        c_ax.plot(fitted["T"], fitted["C"], "o", color=PALETTE[7], markersize=2, label="data")
+        c_ax.plot(fitted["T"], fitted["C_model"], color=PALETTE[1], label="fit")
+        c_ax.set_xscale("log")
+        c_ax.set_ylabel(r"$C$ (J mol$^{-1}$ K$^{-1}$)")
+        c_ax.legend()
+        res_ax.plot(fitted["T"], fitted["normalised"], "o", color=PALETTE[1], markersize=2)
+        res_ax.axhline(0.0, color=PALETTE[7], linewidth=0.6)
+        res_ax.set_xscale("log")
+        res_ax.set_xlabel(r"$T$ (K)")
+        res_ax.set_ylabel(r"residual/$\sigma$")
+        for k, ax in enumerate((dos_ax, c_ax, res_ax)):
+            ax.set_title(f"({chr(97 + k)})", loc="left")
+    return fig
 
 def save_figure(fig: Figure, path: str | os.PathLike, *, formats=None, overwrite: bool = False) -> list[Path]:
     """Write a figure as PDF, SVG and/or PNG; never replaces a file unless asked.

@@ -87,3 +87,14 @@ def test_explorer_benchmark_prints_slider_times(capsys):
     print(out)
     # the kernel-side time of a slider move is reported, not asserted (shared machine)
     assert "target" in out and times["mixture_s"] > 0 and times["dos_s"] > 0
+
+
+def test_inversion_benchmark_prints_times(capsys):
+    from bench_inversion import main
+
+    times = main()
+    out = capsys.readouterr().out
+    print(out)
+    assert "target" in out and times["core_s"] > 0
+    # the benchmark's inversion must fit within the noise, whatever its speed (seeded data)
+    assert 0.5 < times["chi2_red"] < 1.5
