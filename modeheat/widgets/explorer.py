@@ -331,10 +331,12 @@ class Explorer(widgets.VBox):
     def _build_panels(self) -> list:
         from .data_panel import DataPanel
         from .fit_panel import FitPanel
+        from .inversion_panel import InversionPanel
 
         self.data_panel = DataPanel(self._on_spectrum, self._on_data, self.status)
         self.fit_panel = FitPanel(self._fit_problem, self._on_fit_result, self.status)
-        return [self.data_panel, self.fit_panel]
+        self.inversion_panel = InversionPanel(self._inversion_data, self.spectrum_view.show_recovered, self.status)
+        return [self.data_panel, self.fit_panel, self.inversion_panel]
 
     def _on_spectrum(self, spectrum: Spectrum) -> None:
         """A loaded DOS: shown in the spectrum view, offered as a branch; with no model yet,
@@ -365,6 +367,12 @@ class Explorer(widgets.VBox):
             raise InputError("tick “vary in fit” for at least one parameter")
         model = s.model if s.atoms is None else s.model.with_atoms(s.atoms)
         return model, list(s.data), s.window, sorted(s.vary)
+
+    def _inversion_data(self) -> tuple:
+        """(data sets, atoms per formula unit or None) for the inversion panel."""
+        if not self.state.data:
+            raise InputError("there are no heat-capacity data to invert: load a data file first")
+        return list(self.state.data), self.state.atoms
 
     def _on_fit_result(self, result) -> None:
         """Move the sliders to the fitted model (one edit, so undo returns to before the fit)."""

@@ -16,7 +16,7 @@ from ..models import Mixture
 from ..progress import Progress
 from .status import StatusArea
 
-__all__ = ["FitPanel", "FitProblem", "parameter_table"]
+__all__ = ["FitPanel", "FitProblem", "advance", "parameter_table"]
 
 #: What ``get_problem()`` returns: the starting model, the data sets, the window
 #: (tmin, tmax) in K (None: open) and the keys of the parameters to vary.
@@ -150,13 +150,20 @@ class FitPanel(widgets.VBox):
 
     def _step(self, step: Progress) -> bool:
         """The fit's progress callback: move the bar; False (cancel) once Cancel was pressed."""
-        if step.total is not None and step.done >= step.total:
-            self.progress.max = max(step.total, 1)
-        else:
-            while step.done > self.progress.max:
-                self.progress.max *= 2
-        self.progress.value = min(step.done, self.progress.max)
+        advance(self.progress, step)
         return not self._cancel.is_set()
+
+
+def advance(bar: widgets.IntProgress, step: Progress) -> None:
+    """Move a progress bar to a :class:`~modeheat.progress.Progress` record: its length is
+    the record's total when known, otherwise it doubles whenever it fills (a fit does not
+    know its number of evaluations)."""
+    if step.total is not None:
+        bar.max = max(step.total, 1)
+    else:
+        while step.done > bar.max:
+            bar.max *= 2
+    bar.value = min(step.done, bar.max)
 
 
 def _summary(result: FitResult) -> str:
