@@ -17,7 +17,8 @@ squares problem, weighted by the data's σ, with
 The band is a 68 % resampling band: the data are redrawn within σ (seeded) and
 re-inverted with the chosen α, and the 16th and 84th percentiles of each bin's density
 are reported; moment Debye temperatures carry the standard deviation of the resamples.
-The data are taken as C_v: convert a C_p with :func:`~modeheat.cv_from_cp` first.
+The data are taken as C_v, or, with ``cp_to_cv``, as a C_p turned into C_v first by
+:func:`~modeheat.cv_from_cp`, each σ scaled by the local slope dC_v/dC_p.
 """
 
 from __future__ import annotations
@@ -25,13 +26,14 @@ from __future__ import annotations
 import math
 import numbers
 import warnings
-from collections.abc import Iterator
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
 from scipy.optimize import nnls
 
+from .cp_cv import cv_from_cp
 from .engine.special import einstein_terms
 from .errors import InputError, ModeheatWarning
 from .fitting._points import _points
@@ -67,7 +69,7 @@ class InversionResult:
     density : ndarray — modes per THz per formula unit
     band_low, band_high : ndarray — the band in modes per THz (NaN when band="none")
     band_method : str — how the band was made, in words
-    fitted : DataFrame — T (K), C, C_model, residual (J/(mol K)), normalised (residual/σ)
+    fitted : DataFrame — T (K), C (the C_v inverted), C_model, residual (J/(mol K)), normalised (residual/σ)
     chi2_red : float — χ² per degree of freedom (points − effective parameters)
     alpha : float — the penalty strength (relative to the scale of the data rows)
     alpha_method : str — "gcv" or "lcurve", with the published name
@@ -118,8 +120,9 @@ class InversionResult:
 
 
 # --- input --------------------------------------------------------------------------
-def _measured(data) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """T, C, σ sorted by T, validated; σ = 1 % of C with a warning when missing."""
+def _measured(data, cp_to_cv: Mapping | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """T, C_v, σ sorted by T, validated; σ = 1 % of C with a warning when missing;
+    a C_p converted to C_v first when `cp_to_cv` is given (:func:`_to_cv`)."""
     pts = _points(data, None, None)
     T, C, sigma = pts.T, pts.C, pts.sigma
     if T.size < 10:
@@ -138,8 +141,38 @@ def _measured(data) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
             stacklevel=4,
         )
         sigma = _SIGMA_FALLBACK * C
+    if cp_to_cv is not None:
+        C, sigma = _to_cv(T, C, sigma, cp_to_cv)
     order = np.argsort(T, kind="stable")
     return T[order], C[order], sigma[order]
+
+
+_CONVERSION_KEYS = frozenset({"alpha", "bulk_modulus", "molar_volume", "gruneisen", "A"})
+
+
+def _to_cv(T: np.ndarray, cp: np.ndarray, sigma: np.ndarray, cp_to_cv: Mapping) -> tuple[np.ndarray, np.ndarray]:
+    """C_v (J/(mol K)) from C_p by :func:`~modeheat.cv_from_cp`, and σ × dC_v/dC_p.
+
+    Every form is at most quadratic in C_p, so the central difference of the backend's
+    own conversion gives the slope exactly (up to rounding) without repeating the forms.
+    """
+    if not isinstance(cp_to_cv, Mapping):
+        raise InputError(f"cp_to_cv must be a mapping of cv_from_cp's keywords, not {type(cp_to_cv).__name__}")
+    unknown = sorted(set(map(str, cp_to_cv)) - _CONVERSION_KEYS)
+    if unknown:
+        raise InputError(f"cp_to_cv: unknown keyword {unknown[0]!r}; give {', '.join(sorted(_CONVERSION_KEYS))}")
+    cv = cv_from_cp(T, cp, **cp_to_cv)
+    h = 1e-3 * cp
+    slope = (cv_from_cp(T, cp + h, **cp_to_cv) - cv_from_cp(T, cp - h, **cp_to_cv)) / (2.0 * h)
+    bad = np.flatnonzero(~((cv > 0) & (slope > 0)))
+    if bad.size:
+        i = int(bad[0])
+        raise InputError(
+            f"cp_to_cv: at T = {T[i]:g} K, C_p = {cp[i]:g} J/(mol K) gives C_v = {cv[i]:g} J/(mol K) with "
+            f"dC_v/dC_p = {slope[i]:.3g}; both must be positive (the dilatation coefficients are too large)",
+            index=i,
+        )
+    return cv, sigma * slope
 
 
 def _grid_kelvin(grid, T: np.ndarray) -> np.ndarray:
@@ -287,6 +320,7 @@ def iter_invert_heat_capacity(
     band: str = "resample",
     samples: int = 50,
     seed: int = 0,
+    cp_to_cv: Mapping | None = None,
 ) -> Iterator[Progress]:
     """The inversion as a generator of :class:`~modeheat.progress.Progress` records.
 
@@ -295,7 +329,7 @@ def iter_invert_heat_capacity(
     """
     _check_options(method, electronic, band, samples, seed)
     atoms, _ = atoms_of_data(data, atoms)
-    T, C, sigma = _measured(data)
+    T, C, sigma = _measured(data, cp_to_cv)
     edges = _grid_kelvin(grid, T)
     modes = 3.0 * atoms
     fit_gamma = electronic == "fit"
@@ -392,15 +426,16 @@ def invert_heat_capacity(
     band: str = "resample",
     samples: int = 50,
     seed: int = 0,
+    cp_to_cv: Mapping | None = None,
     progress: ProgressCallback | None = None,
 ) -> InversionResult:
     """Recover a phonon DOS from a measured heat capacity C_v(T), with a band.
 
     Parameters
     ----------
-    data : DataFrame or list of DataFrames — columns T (K), C (J/(mol K), a C_v:
-        convert C_p with :func:`~modeheat.cv_from_cp` first) and optionally sigma
-        (J/(mol K); missing: 1 % of C with an :class:`InversionWarning`)
+    data : DataFrame or list of DataFrames — columns T (K), C (J/(mol K), a C_v, or a
+        C_p with `cp_to_cv`) and optionally sigma (J/(mol K); missing: 1 % of C with an
+        :class:`InversionWarning`)
     atoms : float, optional — atoms per formula unit (:func:`~modeheat.thermo.atoms_of_data`)
     grid : array_like, optional — bin edges in THz (default: 120 log-spaced bins from
         0.5·k·T_min/h to 12·k·T_max/h)
@@ -411,6 +446,11 @@ def invert_heat_capacity(
     electronic : "fit", "none" or float — γ (J/(mol K²)) fitted, absent, or removed first
     band : {"resample", "none"} — the 68 % resampling band, or none
     samples : int — resamples for the band; seed : int — their seed
+    cp_to_cv : mapping, optional — the data are C_p: keyword arguments of
+        :func:`~modeheat.cv_from_cp` (``A`` in mol/J; or ``alpha`` in 1/K,
+        ``bulk_modulus`` in Pa and ``molar_volume`` in m³/mol; or ``alpha`` and
+        ``gruneisen``) turn them into C_v before the inversion, and each σ is scaled by
+        the local dC_v/dC_p; ``fitted["C"]`` is then that C_v
     progress : callable, optional — a :mod:`modeheat.progress` callback (False cancels)
 
     Returns
@@ -420,14 +460,15 @@ def invert_heat_capacity(
     Raises
     ------
     InputError
-        Fewer than 10 points, T_max/T_min < 3, C ≤ 0, a bad grid or option.
+        Fewer than 10 points, T_max/T_min < 3, C ≤ 0, a bad grid or option, or a
+        `cp_to_cv` that is not a valid conversion or gives C_v ≤ 0 or dC_v/dC_p ≤ 0.
     Cancelled
         The callback cancelled.
     """
     return drive(
         iter_invert_heat_capacity(
             data, atoms=atoms, grid=grid, method=method, prior=prior, electronic=electronic,
-            band=band, samples=samples, seed=seed,
+            band=band, samples=samples, seed=seed, cp_to_cv=cp_to_cv,
         ),
         progress,
     )

@@ -165,3 +165,58 @@ def test_inversion_figure_size(width, inches):
     fig = inversion_figure(_result(0), width=width)
     assert fig.get_size_inches()[0] == pytest.approx(inches)  # journal column widths, common practice
     assert len(fig.axes) == 3
+
+
+# --- C_p → C_v inside the inversion ---------------------------------------------------------
+A_NL = 2e-6  # mol/J, an invented Nernst–Lindemann coefficient (C_p − C_v ≈ 2 % of C_p at 300 K)
+
+
+def _cp_data(seed: int) -> pd.DataFrame:
+    """C_p of the Debye + Einstein truth with seeded 0.5 % noise; σ given on C_p."""
+    cv = _truth()
+    # reference: the Nernst–Lindemann form C_p − C_v = A·C_p²·T solved for C_p in closed
+    # form, C_p = 2C_v/(1 + √(1 − 4A·T·C_v)) (common practice)
+    cp = 2.0 * cv / (1.0 + np.sqrt(1.0 - 4.0 * A_NL * T_GRID * cv))
+    s = 0.005 * cp
+    frame = pd.DataFrame({"T": T_GRID, "C": cp + s * np.random.default_rng(seed).standard_normal(cp.size), "sigma": s})
+    frame.attrs["atoms"] = 2.0
+    return frame
+
+
+def test_cp_to_cv_nernst_lindemann_converts_data_and_sigma():
+    data = _cp_data(0)
+    r = invert_heat_capacity(data, band="none", cp_to_cv={"A": A_NL})
+    cp, T = data["C"].to_numpy(), data["T"].to_numpy()
+    # reference: Nernst–Lindemann C_v = C_p − A·C_p²·T and its slope dC_v/dC_p = 1 − 2A·T·C_p
+    np.testing.assert_allclose(r.fitted["C"], cp - A_NL * cp**2 * T, rtol=1e-12)
+    sigma_cv = data["sigma"].to_numpy() * (1.0 - 2.0 * A_NL * T * cp)
+    np.testing.assert_allclose(r.fitted["normalised"], r.fitted["residual"] / sigma_cv, rtol=1e-9)
+    table = r.moments.set_index("n")
+    for n in (-2, 2):
+        # reference: closed-form moments of the C_v truth — the conversion recovers the harmonic DOS
+        assert table.loc[n, "theta_D"] == pytest.approx(_true_moment(n), rel=0.05)
+
+
+def test_cp_to_cv_thermodynamic_identity():
+    data = _cp_data(1)
+    bulk, volume = 1.4e11, 7e-6  # invented: Pa, m³/mol
+    # invented α_V(T) in 1/K following C_v (Grüneisen's rule), so C_p − C_v stays small at low T
+    def alpha(t):
+        return 5e-5 * np.interp(t, T_GRID, _truth()) / (6.0 * R)
+
+    r = invert_heat_capacity(data, band="none",
+                             cp_to_cv={"alpha": alpha, "bulk_modulus": bulk, "molar_volume": volume})
+    T = data["T"].to_numpy()
+    # reference: the thermodynamic identity C_p − C_v = α²·B·V·T (common practice); slope 1, σ unchanged
+    np.testing.assert_allclose(r.fitted["C"], data["C"].to_numpy() - alpha(T) ** 2 * bulk * volume * T, rtol=1e-12)
+    np.testing.assert_allclose(r.fitted["normalised"], r.fitted["residual"] / data["sigma"].to_numpy(), rtol=1e-9)
+
+
+@pytest.mark.parametrize(
+    "conversion, match",
+    [({"A": 1.0}, "must be positive"), ({"B": 1.0}, "unknown keyword"), ([("A", 1e-6)], "mapping"),
+     ({"alpha": 1e-5}, "one form")],
+)
+def test_cp_to_cv_bad_conversion(conversion, match):
+    with pytest.raises(InputError, match=match):
+        invert_heat_capacity(_cp_data(0), band="none", cp_to_cv=conversion)
