@@ -208,13 +208,16 @@ def test_real_inversion_of_the_demo_data_in_the_explorer():
     assert "θ" in panel.summary.value and result.alpha_method.split()[0] in panel.summary.value
 
 
-def test_inversion_gets_c_v_through_the_models_dilatation_term():
-    """With a Dilatation term in the model, the panel inverts C_v = C_p − A·C_p²·T
-    (Nernst–Lindemann form, common practice), not the measured C_p."""
+def test_inversion_gets_c_v_through_the_models_dilatation_term(backend):
+    """With a Dilatation term in the model, the panel hands the measured C_p and the model's
+    A to the backend as ``cp_to_cv`` (which inverts C_v = C_p − A·C_p²·T, tested in
+    test_inversion.py against the Nernst–Lindemann closed form); the data are not converted here."""
     explorer = Explorer.demo()
-    sets, atoms = explorer._inversion_data()
-    cp = explorer.state.data[0]
+    sets, atoms, conversion = explorer._inversion_data()
     A = explorer.state.model["dilatation"].A
-    want = cp["C"].to_numpy() - A * cp["C"].to_numpy() ** 2 * cp["T"].to_numpy()
-    np.testing.assert_allclose(sets[0]["C"].to_numpy(), want, rtol=1e-12)
-    assert atoms == 2 and "C_v = C_p" in explorer.status.message
+    assert conversion == {"A": A} and atoms == 2 and "C_v = C_p" in explorer.status.message
+    np.testing.assert_array_equal(sets[0]["C"].to_numpy(), explorer.state.data[0]["C"].to_numpy())
+    explorer.inversion_panel.run(wait=True)
+    assert backend.calls[-1]["cp_to_cv"] == {"A": A}
+    e = Explorer(data=_data(), atoms=2)  # no dilatation term: nothing to convert
+    assert e._inversion_data()[2] is None

@@ -19,7 +19,6 @@ import ipywidgets as widgets
 import numpy as np
 import pandas as pd
 
-from ..cp_cv import cv_from_cp
 from ..errors import InputError
 from ..io import read_heat_capacity, read_spectrum
 from ..io.sessions import load_session, save_session, to_dict
@@ -370,23 +369,18 @@ class Explorer(widgets.VBox):
         return model, list(s.data), s.window, sorted(s.vary)
 
     def _inversion_data(self) -> tuple:
-        """(data sets, atoms per formula unit or None) for the inversion panel."""
+        """(data sets, atoms per formula unit or None, C_p → C_v keywords or None) for the inversion panel."""
         if not self.state.data:
             raise InputError("there are no heat-capacity data to invert: load a data file first")
         model = self.state.model
         dilatation = [c for c in (model.components if model is not None else ()) if isinstance(c, Dilatation)]
         if not dilatation:
-            return list(self.state.data), self.state.atoms
-        # Measured C_p becomes C_v with the model's dilatation term (Nernst–Lindemann form), the
-        # backend's conversion: the inversion recovers a harmonic DOS, whose heat capacity is C_v.
+            return list(self.state.data), self.state.atoms, None
+        # Measured C_p becomes C_v inside the backend with the model's dilatation term (Nernst–Lindemann
+        # form): the inversion recovers a harmonic DOS, whose heat capacity is C_v.
         A = dilatation[0].A
-        sets = []
-        for frame in self.state.data:
-            converted = frame.copy()
-            converted["C"] = cv_from_cp(frame["T"].to_numpy(), frame["C"].to_numpy(), A=A)
-            sets.append(converted)
         self.status.info(f"inverting C_v = C_p − A·C_p²·T with the model's A = {A:.3g} mol/J")
-        return sets, self.state.atoms
+        return list(self.state.data), self.state.atoms, {"A": A}
 
     def _on_fit_result(self, result) -> None:
         """Move the sliders to the fitted model (one edit, so undo returns to before the fit)."""

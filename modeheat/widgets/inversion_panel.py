@@ -6,7 +6,7 @@ from __future__ import annotations
 import html
 import math
 import threading
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 
 import ipywidgets as widgets
 import pandas as pd
@@ -18,9 +18,11 @@ from .status import StatusArea
 
 __all__ = ["InversionPanel", "InversionProblem", "summary_html"]
 
-#: What ``get_data()`` returns: the heat-capacity data sets and the atoms per formula unit
-#: (None: the backend's rule for data decides).
-InversionProblem = tuple[Sequence[pd.DataFrame], float | None]
+#: What ``get_data()`` returns: the heat-capacity data sets, the atoms per formula unit
+#: (None: the backend's rule for data decides) and, optionally, the keyword arguments of
+#: :func:`modeheat.cv_from_cp` that turn measured C_p into C_v (passed as ``cp_to_cv``).
+InversionProblem = (tuple[Sequence[pd.DataFrame], float | None]
+                    | tuple[Sequence[pd.DataFrame], float | None, Mapping | None])
 
 #: Strength choices offered: label → the backend's ``method``.
 METHODS = (("GCV", "gcv"), ("L-curve", "lcurve"))
@@ -33,8 +35,8 @@ _FIRST_MAX = 16
 class InversionPanel(widgets.VBox):
     """Invert C(T), Cancel, the method, electronic and band controls, a progress bar and a summary.
 
-    Pressing "Invert C(T)" (or :meth:`run`) asks `get_data` for the data sets and the atom
-    count and runs :func:`modeheat.inversion.invert_heat_capacity` in a background thread,
+    Pressing "Invert C(T)" (or :meth:`run`) asks `get_data` for the data sets, the atom
+    count and any C_p → C_v conversion, and runs :func:`modeheat.inversion.invert_heat_capacity` in a background thread,
     so the notebook stays responsive and Cancel works: the progress callback feeds the
     bar and answers False once Cancel was pressed.  When the inversion ends, the summary
     shows the regularisation strength α and how it was chosen, χ²_red, the moment Debye
@@ -44,7 +46,8 @@ class InversionPanel(widgets.VBox):
 
     Parameters
     ----------
-    get_data : callable — returns ``(data sets, atoms)`` (:data:`InversionProblem`)
+    get_data : callable — returns ``(data sets, atoms)`` or ``(data sets, atoms, cp_to_cv)``
+        (:data:`InversionProblem`)
     on_result : callable — receives the :class:`~modeheat.inversion.InversionResult`
     status : StatusArea — where progress notes and problems are shown
 
@@ -146,9 +149,11 @@ class InversionPanel(widgets.VBox):
             with self.status.guard("inverting C(T)"):
                 from ..inversion import invert_heat_capacity  # the backend loads only when asked for
 
-                data, atoms = problem
+                data, atoms = problem[0], problem[1]
+                conversion = problem[2] if len(problem) > 2 else None
                 try:
-                    result = invert_heat_capacity(list(data), atoms=atoms, progress=self._step, **options)
+                    result = invert_heat_capacity(list(data), atoms=atoms, cp_to_cv=conversion,
+                                                  progress=self._step, **options)
                 except Cancelled:
                     self.progress.bar_style = "warning"
                     self.status.info(f"inversion cancelled after {self.progress.value} steps: nothing changed")
