@@ -67,6 +67,7 @@ _DOCUMENTED_NAN = {
     "LowTemperatureFit": {"delta", "delta_stderr", "chi2_red"},
     "FitResult": {"chi2_red"},
     "DebyeBreakdown": {"t3_below"},
+    "InversionResult": {"band_low", "band_high", "gamma"},  # NaN with band="none" / electronic="none"
 }
 
 

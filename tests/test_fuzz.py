@@ -232,3 +232,16 @@ def test_model_fit_cancelled_by_its_progress_callback(data, model, stop):
 )
 def test_progress_record(done, total, stage):
     outcome(lambda: mh.progress.Progress(done, total, stage))
+
+
+@examples(40)
+@given(
+    data=heat_capacity_frames(),
+    method=st.sampled_from(["gcv", "lcurve"]),
+    electronic=st.sampled_from(["fit", "none", 1e-3]),
+    cp_to_cv=st.sampled_from([None, {"A": 1e-6}, {"A": 1.0}, {"alpha": 1e-5, "gruneisen": 2.0}]),
+)
+def test_invert_heat_capacity(data, method, electronic, cp_to_cv):
+    # few examples: each inversion scans 17 strengths; band="none" keeps it to one solve each
+    outcome(lambda: mh.invert_heat_capacity(data, method=method, electronic=electronic, band="none",
+                                            cp_to_cv=cp_to_cv))
