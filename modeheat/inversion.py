@@ -36,7 +36,7 @@ from scipy.optimize import nnls
 from .cp_cv import cv_from_cp
 from .engine.special import einstein_terms
 from .errors import InputError, ModeheatWarning
-from .fitting._points import _points
+from .fitting._points import _SIGMA_FLOOR, _SIGMA_RELATIVE, _points
 from .models import PhononDOS
 from .progress import Progress, ProgressCallback, drive
 from .spectrum import Spectrum
@@ -143,6 +143,17 @@ def _measured(data, cp_to_cv: Mapping | None = None) -> tuple[np.ndarray, np.nda
         sigma = _SIGMA_FALLBACK * C
     if cp_to_cv is not None:
         C, sigma = _to_cv(T, C, sigma, cp_to_cv)
+    # The fits' floor for uncertainties: weights 1/σ of tinier ones overflow.
+    floor = max(_SIGMA_FLOOR, _SIGMA_RELATIVE * float(C.max()))
+    small = np.flatnonzero(sigma < floor)
+    if small.size:
+        k = int(small[0])
+        raise InputError(
+            f"the uncertainty at T = {T[k]:g} K is {sigma[k]:.3g} J/(mol K) (C = {C[k]:.3g}), below "
+            f"{floor:.3g}: sigma must be ≥ {_SIGMA_FLOOR:g} J/(mol K) and ≥ {_SIGMA_RELATIVE:g} of the "
+            "largest C to weight the inversion",
+            index=k,
+        )
     order = np.argsort(T, kind="stable")
     return T[order], C[order], sigma[order]
 

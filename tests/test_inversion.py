@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import functools
 import math
+import warnings
 
 import mpmath
 import numpy as np
@@ -268,3 +269,14 @@ def test_lattice_round_trip(lattice_dos, seed):
     for n in (-2, 2):
         # reference: θ(n) of the lattice DOS (Spectrum.moment_debye_temperature of the tested lattice code)
         assert table.loc[n, "theta_D"] == pytest.approx(lattice_dos.moment_debye_temperature(n), rel=0.05)
+
+
+def test_uncertainties_too_small_to_weight_are_refused():
+    """A subnormal C with the 1 % fallback σ overflowed the weights (found by the fuzz
+    target); like the fits, σ below 1e-30 J/(mol K) or 1e-12 of the largest C is refused."""
+    T = np.geomspace(1.0, 30.0, 12)
+    frame = pd.DataFrame({"T": T, "C": np.where(T < 29.0, 1e-3 * T**3, 2.2e-313)})
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InversionWarning)  # no sigma column: the documented fallback
+        with pytest.raises(InputError, match="uncertainty .* below"):
+            invert_heat_capacity(frame, atoms=1, band="none")
