@@ -4,19 +4,17 @@ from __future__ import annotations
 
 import html
 import math
-import threading
 from collections.abc import Callable, Sequence
 
 import ipywidgets as widgets
 import pandas as pd
 
-from ..errors import Cancelled
 from ..fitting import FitResult, fit
 from ..models import Mixture
-from ..progress import Progress
+from .background import BackgroundPanel
 from .status import StatusArea
 
-__all__ = ["FitPanel", "FitProblem", "advance", "parameter_table"]
+__all__ = ["FitPanel", "FitProblem", "parameter_table"]
 
 #: What ``get_problem()`` returns: the starting model, the data sets, the window
 #: (tmin, tmax) in K (None: open) and the keys of the parameters to vary.
@@ -27,7 +25,7 @@ FitProblem = tuple[Mixture, Sequence[pd.DataFrame], tuple[float | None, float | 
 _FIRST_MAX = 64
 
 
-class FitPanel(widgets.VBox):
+class FitPanel(BackgroundPanel):
     """Fit, Cancel, a progress bar, the parameter table and the fit report.
 
     Pressing Fit (or :meth:`run`) asks `get_problem` for the model, the data, the window
@@ -55,6 +53,8 @@ class FitPanel(widgets.VBox):
     result : FitResult or None — the last finished fit
     """
 
+    noun, doing, steps, applying = "fit", "fitting", "evaluations", "applying the fit result"
+
     def __init__(
         self,
         get_problem: Callable[[], FitProblem],
@@ -62,11 +62,6 @@ class FitPanel(widgets.VBox):
         status: StatusArea,
     ) -> None:
         self.get_problem = get_problem
-        self.on_result = on_result
-        self.status = status
-        self.result: FitResult | None = None
-        self._thread: threading.Thread | None = None
-        self._cancel = threading.Event()
         self.fit_button = widgets.Button(description="Fit", tooltip="fit the checked parameters over the window")
         self.fit_button.add_class("mh-fit")
         self.cancel_button = widgets.Button(description="Cancel", disabled=True, tooltip="stop the running fit")
@@ -76,94 +71,22 @@ class FitPanel(widgets.VBox):
         self.table.add_class("mh-fit-table")
         self.report = widgets.HTML(value="")
         self.report.add_class("mh-fit-report")
-        self.fit_button.on_click(lambda _: self.run())
-        self.cancel_button.on_click(lambda _: self.cancel())
         super().__init__([widgets.HBox([self.fit_button, self.cancel_button, self.progress]), self.table, self.report])
+        self._init_background(on_result, status, self.fit_button, self.cancel_button, self.progress)
         self.add_class("mh-fit-panel")
 
-    @property
-    def running(self) -> bool:
-        """True while a fit runs."""
-        return self._thread is not None and self._thread.is_alive()
+    def _problem(self) -> FitProblem:
+        return self.get_problem()
 
-    def run(self, wait: bool = False) -> FitResult | None:
-        """Start a fit of the current problem (refused, with a note, while one runs).
+    def _compute(self, problem: FitProblem, progress) -> FitResult:
+        model, data, (tmin, tmax), vary = problem
+        return fit(model, list(data), tmin=tmin, tmax=tmax, vary=list(vary), progress=progress)
 
-        Parameters
-        ----------
-        wait : bool — block until the fit has ended (tests, scripts)
-
-        Returns
-        -------
-        FitResult or None
-            With `wait`, the finished fit, or None when it was cancelled or failed (the
-            status says why); without, None.
-        """
-        if self.running:
-            self.status.error("a fit is already running: wait for it to end or press Cancel")
-            return None
-        problem = None
-        with self.status.guard("preparing the fit"):
-            problem = self.get_problem()
-        if problem is None:
-            return None
-        self._cancel.clear()
-        self.result = None
-        self.progress.max, self.progress.value, self.progress.bar_style = _FIRST_MAX, 0, ""
-        self.fit_button.disabled, self.cancel_button.disabled = True, False
-        self.status.info("fitting…")
-        self._thread = threading.Thread(target=self._work, args=(problem,), name="modeheat-fit", daemon=True)
-        self._thread.start()
-        if wait:
-            self._thread.join()
-            return self.result
-        return None
-
-    def cancel(self) -> None:
-        """Ask the running fit to stop at its next evaluation (nothing to do when none runs)."""
-        if self.running:
-            self._cancel.set()
-            self.status.info("cancelling the fit…")
-
-    # --- the fit thread -----------------------------------------------------------------------
-    def _work(self, problem: FitProblem) -> None:
-        try:
-            with self.status.guard("fitting"):
-                model, data, (tmin, tmax), vary = problem
-                try:
-                    result = fit(model, list(data), tmin=tmin, tmax=tmax, vary=list(vary), progress=self._step)
-                except Cancelled:
-                    self.progress.bar_style = "warning"
-                    self.status.info(f"fit cancelled after {self.progress.value} evaluations: nothing changed")
-                    return
-                self.result = result
-                self.table.value = parameter_table(result)
-                self.report.value = f"<pre>{html.escape(result.report())}</pre>"
-                self.progress.bar_style = "success" if result.success else "warning"
-                self.status.info(_summary(result))
-            if self.result is None:
-                return  # the status says what went wrong
-            with self.status.guard("applying the fit result"):
-                self.on_result(self.result)
-        finally:
-            self.fit_button.disabled, self.cancel_button.disabled = False, True
-
-    def _step(self, step: Progress) -> bool:
-        """The fit's progress callback: move the bar; False (cancel) once Cancel was pressed."""
-        advance(self.progress, step)
-        return not self._cancel.is_set()
-
-
-def advance(bar: widgets.IntProgress, step: Progress) -> None:
-    """Move a progress bar to a :class:`~modeheat.progress.Progress` record: its length is
-    the record's total when known, otherwise it doubles whenever it fills (a fit does not
-    know its number of evaluations)."""
-    if step.total is not None:
-        bar.max = max(step.total, 1)
-    else:
-        while step.done > bar.max:
-            bar.max *= 2
-    bar.value = min(step.done, bar.max)
+    def _show(self, result: FitResult) -> None:
+        self.table.value = parameter_table(result)
+        self.report.value = f"<pre>{html.escape(result.report())}</pre>"
+        self.progress.bar_style = "success" if result.success else "warning"
+        self.status.info(_summary(result))
 
 
 def _summary(result: FitResult) -> str:

@@ -5,15 +5,12 @@ from __future__ import annotations
 
 import html
 import math
-import threading
 from collections.abc import Callable, Mapping, Sequence
 
 import ipywidgets as widgets
 import pandas as pd
 
-from ..errors import Cancelled
-from ..progress import Progress
-from .fit_panel import advance
+from .background import BackgroundPanel
 from .status import StatusArea
 
 __all__ = ["InversionPanel", "InversionProblem", "summary_html"]
@@ -32,7 +29,7 @@ ELECTRONIC = (("fit alongside", "fit"), ("none", "none"))
 _FIRST_MAX = 16
 
 
-class InversionPanel(widgets.VBox):
+class InversionPanel(BackgroundPanel):
     """Invert C(T), Cancel, the method, electronic and band controls, a progress bar and a summary.
 
     Pressing "Invert C(T)" (or :meth:`run`) asks `get_data` for the data sets, the atom
@@ -62,6 +59,8 @@ class InversionPanel(widgets.VBox):
     result : InversionResult or None — the last finished inversion
     """
 
+    noun, doing, steps, applying = "inversion", "inverting C(T)", "steps", "drawing the recovered DOS"
+
     def __init__(
         self,
         get_data: Callable[[], InversionProblem],
@@ -69,11 +68,6 @@ class InversionPanel(widgets.VBox):
         status: StatusArea,
     ) -> None:
         self.get_data = get_data
-        self.on_result = on_result
-        self.status = status
-        self.result = None
-        self._thread: threading.Thread | None = None
-        self._cancel = threading.Event()
         self.invert_button = widgets.Button(description="Invert C(T)",
                                             tooltip="recover a DOS from the loaded heat-capacity data")
         self.invert_button.add_class("mh-invert")
@@ -87,93 +81,33 @@ class InversionPanel(widgets.VBox):
         self.progress = widgets.IntProgress(value=0, min=0, max=_FIRST_MAX, description="steps")
         self.summary = widgets.HTML(value="")
         self.summary.add_class("mh-invert-summary")
-        self.invert_button.on_click(lambda _: self.run())
-        self.cancel_button.on_click(lambda _: self.cancel())
         super().__init__([
             widgets.HBox([self.invert_button, self.cancel_button, self.progress]),
             widgets.HBox([self.method, self.electronic, self.band]),
             self.summary,
         ])
+        self._init_background(on_result, status, self.invert_button, self.cancel_button, self.progress)
         self.add_class("mh-invert-panel")
 
-    @property
-    def running(self) -> bool:
-        """True while an inversion runs."""
-        return self._thread is not None and self._thread.is_alive()
-
-    def run(self, wait: bool = False):
-        """Start an inversion of the current data (refused, with a note, while one runs).
-
-        Parameters
-        ----------
-        wait : bool — block until the inversion has ended (tests, scripts)
-
-        Returns
-        -------
-        InversionResult or None
-            With `wait`, the finished inversion, or None when it was cancelled or failed
-            (the status says why); without, None.
-        """
-        if self.running:
-            self.status.error("an inversion is already running: wait for it to end or press Cancel")
-            return None
-        problem = None
-        with self.status.guard("preparing the inversion"):
-            problem = self.get_data()
-        if problem is None:
-            return None
-        self._cancel.clear()
-        self.result = None
-        self.progress.max, self.progress.value, self.progress.bar_style = _FIRST_MAX, 0, ""
-        self.invert_button.disabled, self.cancel_button.disabled = True, False
-        self.status.info("inverting C(T)…")
+    def _problem(self) -> tuple:
+        # the controls are read here, on the calling thread, not in the worker
         options = {"method": self.method.value, "electronic": self.electronic.value,
                    "band": "resample" if self.band.value else "none"}
-        self._thread = threading.Thread(target=self._work, args=(problem, options), name="modeheat-invert",
-                                        daemon=True)
-        self._thread.start()
-        if wait:
-            self._thread.join()
-            return self.result
-        return None
+        return self.get_data(), options
 
-    def cancel(self) -> None:
-        """Ask the running inversion to stop at its next step (nothing to do when none runs)."""
-        if self.running:
-            self._cancel.set()
-            self.status.info("cancelling the inversion…")
+    def _compute(self, problem: tuple, progress):
+        from ..inversion import invert_heat_capacity  # the backend loads only when asked for
 
-    # --- the inversion thread -----------------------------------------------------------------
-    def _work(self, problem: InversionProblem, options: dict) -> None:
-        try:
-            with self.status.guard("inverting C(T)"):
-                from ..inversion import invert_heat_capacity  # the backend loads only when asked for
+        data_problem, options = problem
+        data, atoms = data_problem[0], data_problem[1]
+        conversion = data_problem[2] if len(data_problem) > 2 else None
+        return invert_heat_capacity(list(data), atoms=atoms, cp_to_cv=conversion, progress=progress, **options)
 
-                data, atoms = problem[0], problem[1]
-                conversion = problem[2] if len(problem) > 2 else None
-                try:
-                    result = invert_heat_capacity(list(data), atoms=atoms, cp_to_cv=conversion,
-                                                  progress=self._step, **options)
-                except Cancelled:
-                    self.progress.bar_style = "warning"
-                    self.status.info(f"inversion cancelled after {self.progress.value} steps: nothing changed")
-                    return
-                self.result = result
-                self.summary.value = summary_html(result)
-                self.progress.bar_style = "success"
-                self.status.info(f"inversion done: α = {result.alpha:.3g} by {result.alpha_method}, "
-                                 f"χ²_red = {result.chi2_red:.3g}")
-            if self.result is None:
-                return  # the status says what went wrong
-            with self.status.guard("drawing the recovered DOS"):
-                self.on_result(self.result)
-        finally:
-            self.invert_button.disabled, self.cancel_button.disabled = False, True
-
-    def _step(self, step: Progress) -> bool:
-        """The inversion's progress callback: move the bar; False (cancel) once Cancel was pressed."""
-        advance(self.progress, step)
-        return not self._cancel.is_set()
+    def _show(self, result) -> None:
+        self.summary.value = summary_html(result)
+        self.progress.bar_style = "success"
+        self.status.info(f"inversion done: α = {result.alpha:.3g} by {result.alpha_method}, "
+                         f"χ²_red = {result.chi2_red:.3g}")
 
 
 def summary_html(result) -> str:
