@@ -238,3 +238,15 @@ def test_fit_of_a_spectrum_alone():
     assert result.varied == ("dos.scale",)
     # reference: mpmath Debye C_v at θ·1.04 without noise; the engine's 1e-10 accuracy
     assert result.params["dos.scale"] == pytest.approx(SCALE, rel=1e-8)
+
+
+def test_two_spectra_add_into_two_terms():
+    """`dos_a + dos_b` is a mixture of two PhononDOS terms whose heat capacity is the sum
+    (heat capacities of independent modes add: common practice); `spectrum + spectrum`
+    used to be a TypeError."""
+    a, b = humps(), debye_dos(300.0)
+    mix = a + b
+    assert [c.name for c in mix] == ["dos", "dos_2"] and mix.modes == pytest.approx(a.modes + b.modes)
+    np.testing.assert_allclose(heat_capacity(mix, T), heat_capacity(a, T) + heat_capacity(b, T), rtol=1e-12)
+    with pytest.raises(TypeError):
+        a + "not a source"

@@ -806,6 +806,15 @@ class Spectrum(Documented):
 
         return sessions.from_dict, (sessions.to_dict(self),)
 
+    def __add__(self, other):
+        """Two spectra make a mixture of two :class:`~modeheat.PhononDOS` terms ("dos", "dos_2");
+        a spectrum plus a component or mixture is handled by those (their ``__radd__``)."""
+        if not isinstance(other, Spectrum):
+            return NotImplemented
+        from ..models import Mixture, PhononDOS  # models import this module
+
+        return Mixture((PhononDOS(self), PhononDOS(other)))
+
     def __eq__(self, other) -> bool:
         from ..io import sessions
 
