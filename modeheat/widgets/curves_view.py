@@ -89,6 +89,7 @@ class HeatCapacityView(widgets.VBox):
                                        line_style="dotted")
         self._spectrum_curves: tuple = (None, [])
         self._data_curves: tuple = (None, [])
+        self._drawn_data: tuple | None = None
         self.dulong_petit = bq.Lines(x=[], y=[], scales=sc, colors=["#999999"], line_style="dotted")
         self.t3_law = bq.Lines(x=[], y=[], scales=sc, colors=["#999999"], line_style="dash_dotted")
         self.data_points: list[bq.Scatter] = []
@@ -243,24 +244,35 @@ class HeatCapacityView(widgets.VBox):
                            for i in range(n)]
         self.figure.marks = self._marks()
 
+    @staticmethod
+    def _draw_points(curves, points, bars, xcol: str, ycol: str, log_y: bool) -> None:
+        """One data set's points and error bars in the current representation."""
+        has_y = ycol in curves.columns
+        with points.hold_sync():
+            points.x = compact(curves[xcol]) if has_y else []
+            points.y = compact(curves[ycol], log_y) if has_y else []
+        with bars.hold_sync():
+            sigma = _SIGMA.get(ycol)
+            if has_y and sigma in curves.columns:
+                bx, by = _bars(curves[xcol].to_numpy(), curves[ycol].to_numpy(), curves[sigma].to_numpy())
+                bars.x, bars.y = compact(bx), compact(by, log_y)
+            else:
+                bars.x, bars.y = [], []
+
     def _draw_data(self, state, xcol: str, ycol: str, log_y: bool) -> None:
         model: Mixture | None = state.model
         residual_x, residual_y = [], []
         key = state.data
         if not same_objects(key, self._data_curves[0]):  # data change rarely: their curves are kept until then
             self._data_curves = (key, [temperature_curves(d) for d in state.data])
+        # The points move only with the data or the representation: a slider leaves them, and
+        # sending them again on every step would only slow the browser down.
+        drawn = (*key, xcol, ycol, str(log_y), *self.data_points)
+        redraw = not same_objects(drawn, self._drawn_data)
+        self._drawn_data = drawn
         for curves, points, bars in zip(self._data_curves[1], self.data_points, self.error_bars):
-            has_y = ycol in curves.columns
-            with points.hold_sync():
-                points.x = compact(curves[xcol]) if has_y else []
-                points.y = compact(curves[ycol], log_y) if has_y else []
-            with bars.hold_sync():
-                sigma = _SIGMA.get(ycol)
-                if has_y and sigma in curves.columns:
-                    bx, by = _bars(curves[xcol].to_numpy(), curves[ycol].to_numpy(), curves[sigma].to_numpy())
-                    bars.x, bars.y = compact(bx), compact(by, log_y)
-                else:
-                    bars.x, bars.y = [], []
+            if redraw:
+                self._draw_points(curves, points, bars, xcol, ycol, log_y)
             if model is not None and model.components:
                 residual_x.append(curves["T"].to_numpy())
                 residual_y.append(curves["C"].to_numpy() - model_cp(model, curves["T"].to_numpy()))
