@@ -21,6 +21,7 @@ import modeheat as mh
 from modeheat.representations import contributions, plot_dos, reduced_dos, temperature_curves
 from modeheat.widgets import Explorer, ExplorerState
 from modeheat.widgets.curves_view import model_cp
+from modeheat.widgets.spectrum_view import POINTS
 
 ROOT = Path(__file__).resolve().parents[1]
 F32 = 1e-7  # float32 rounding of the marks' arrays (module docstring)
@@ -141,13 +142,13 @@ def test_unit_and_reduced_dos_in_the_spectrum_view():
     e = Explorer.demo()
     sv = e.spectrum_view
     model = e.state.model
-    want = plot_dos(model, unit="THz")  # reference: the backend
+    want = plot_dos(model, unit="THz", points=POINTS)  # reference: the backend, on the view's grid
     np.testing.assert_allclose(sv.model_line.y, want["total"], rtol=F32)
     assert len(sv.spectrum_lines) == 1 and np.asarray(sv.spectrum_lines[0].y).shape[0] == 3  # total, A, B
     sv.unit.value = "meV"
-    np.testing.assert_allclose(sv.model_line.x, plot_dos(model, unit="meV")["frequency"], rtol=F32)
+    np.testing.assert_allclose(sv.model_line.x, plot_dos(model, unit="meV", points=POINTS)["frequency"], rtol=F32)
     sv.reduced.value = True
-    red = reduced_dos(model, unit="meV")
+    red = reduced_dos(model, unit="meV", points=POINTS)
     np.testing.assert_allclose(sv.model_line.y, red["reduced"], rtol=F32)
     np.testing.assert_allclose(sv.debye_level.y, red.attrs["debye_level"], rtol=F32)
     assert e.state.unit == "meV" and e.state.reduced
@@ -166,7 +167,7 @@ def test_demo_scale_slider_lowers_c_and_moves_the_dos():
     below = T <= 300.0
     assert np.all(after[below] < before[below])
     np.testing.assert_allclose(after, temperature_curves(e.state.model, T)["C"], rtol=F32)
-    np.testing.assert_allclose(e.spectrum_view.model_line.y, plot_dos(e.state.model)["total"], rtol=F32)
+    np.testing.assert_allclose(e.spectrum_view.model_line.y, plot_dos(e.state.model, points=POINTS)["total"], rtol=F32)
     # the loaded spectrum's own curve stays as loaded (reference: the backend)
     own = temperature_curves(e.state.spectra[0], T)["C"]
     np.testing.assert_allclose(np.atleast_2d(e.curves_view.spectrum_lines.y)[0], own, rtol=F32)  # one row: bqplot keeps 1-D

@@ -282,9 +282,12 @@ class Explorer(widgets.VBox):
         self._syncing = True
         try:
             with self.status.guard("drawing the curves"):
-                self.editor.show(s.model, s.spectra, s.atoms, s.vary)
-                self.spectrum_view.show(s)
+                # The heat-capacity figure first: the browser applies messages in the order
+                # sent, so the curve the user watches is redrawn before the DOS (a 2,000-point
+                # line) and the editor's boxes are even decoded.
                 self.curves_view.show(s)
+                self.spectrum_view.show(s)
+                self.editor.show(s.model, s.spectra, s.atoms, s.vary)
         finally:
             self._syncing = False
         self.undo_button.disabled, self.redo_button.disabled = not self._undo, not self._redo

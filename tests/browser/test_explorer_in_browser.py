@@ -53,8 +53,12 @@ def test_explorer_demo_in_browser(lab_server, browser_page, tmp_path):
         # 1e-3 px: float formatting of the same point; far below one pixel
         assert np.all(y1 >= y0 - 1e-3), f"press {press}: C rose at some T (curve moved up on screen)"
         assert np.any(y1 > y0 + 1e-3), f"press {press}: the curve did not move down"
-    median, p90 = latency_summary("Explorer.demo()", latencies)
+    median, p90 = latency_summary("Explorer.demo(), heat-capacity view", latencies)
     assert p90 < 2000.0  # sanity bound only: the machine is shared; the targets are printed, not gated
+    # The DOS view redraws on the same key press, after the heat-capacity view (sent second).
+    dos_latencies, dos_paths = press_and_time(page, ".mh-spectrum", ".mh-param-dos-scale .noUi-handle", 10)
+    assert all(a != b for a, b in zip(dos_paths, dos_paths[1:])), "the model DOS did not move with its scale"
+    latency_summary("Explorer.demo(), DOS view", dos_latencies)
 
     before = first_line_d(page, FIGURE)
     choose_representation(page, "θ_D(T)")
