@@ -116,7 +116,7 @@ def test_add_and_remove_branches_with_the_mode_counter():
 
 def test_representations_follow_the_selector():
     e = _two_branch()
-    e.curves_view.components.value = True
+    e.curves_view.components.value = "overlaid"
     T = e.state.temperatures()
     want = temperature_curves(e.state.model, T)  # reference: the backend
     parts = contributions(e.state.model, T)
@@ -136,6 +136,31 @@ def test_representations_follow_the_selector():
     assert type(e.curves_view.figure.axes[1].scale).__name__ == "LogScale"
     e.undo()
     assert not e.state.log_y
+
+
+def test_stacked_components_are_running_sums_up_to_the_model():
+    e = Explorer(model=mh.Debye(theta=300.0) + mh.Einstein(theta=500.0, modes=3) + mh.Electronic(gamma=0.01),
+                 atoms=2)
+    e.curves_view.components.value = "stacked"
+    assert e.state.show_components == "stacked"
+    T = e.state.temperatures()
+    parts = contributions(e.state.model, T)  # reference: the backend's per-component table
+    c = {n: parts.loc[parts["component"] == n, "C"].to_numpy() for n in ("debye", "einstein", "electronic")}
+    ys = np.atleast_2d(np.asarray(e.curves_view.component_lines.y, dtype=float))
+    np.testing.assert_allclose(ys[0], c["debye"], rtol=F32, atol=TINY)
+    np.testing.assert_allclose(ys[1], c["debye"] + c["einstein"], rtol=F32, atol=TINY)
+    assert list(e.curves_view.component_lines.labels) == ["debye", "debye + einstein"]
+    # the last running sum is the model's own line, drawn once
+    np.testing.assert_allclose(ys[1] + c["electronic"], _model_y(e), rtol=1e-5, atol=TINY)
+    e.curves_view.components.value = "off"
+    assert len(e.curves_view.component_lines.y) == 0
+
+
+def test_sessions_saved_with_a_components_check_box_still_load():
+    assert ExplorerState(show_components=True).show_components == "overlaid"
+    assert ExplorerState(show_components=False).show_components == "off"
+    with pytest.raises(mh.InputError, match="show_components"):
+        ExplorerState(show_components="sideways")
 
 
 def test_unit_and_reduced_dos_in_the_spectrum_view():

@@ -14,7 +14,10 @@ from ..models import Dilatation, Mixture
 from ..representations import contributions, temperature_curves
 from ..units import R
 
-__all__ = ["HeatCapacityView", "REPRESENTATIONS", "PALETTE", "compact", "model_cp", "same_objects"]
+__all__ = ["HeatCapacityView", "REPRESENTATIONS", "COMPONENT_VIEWS", "PALETTE", "compact", "model_cp", "same_objects"]
+
+#: How the components' curves are drawn beside the model (for C and S, which add up).
+COMPONENT_VIEWS = ("off", "overlaid", "stacked")
 
 
 #: Representation label → (x column, y column, y label); labels are the selector's options.
@@ -68,8 +71,9 @@ class HeatCapacityView(widgets.VBox):
                                       layout=widgets.Layout(width="auto"))
         self.log_y = widgets.Checkbox(value=False, description="log C or S", indent=False,
                                       layout=widgets.Layout(width="auto"))
-        self.components = widgets.Checkbox(value=False, description="components", indent=False,
-                                      layout=widgets.Layout(width="auto"))
+        self.components = widgets.Dropdown(options=list(COMPONENT_VIEWS), value="off", description="components",
+                                           layout=widgets.Layout(width="200px"))
+        self.components.add_class("mh-components")
         self.fit_axes = widgets.Button(description="fit axes", tooltip="frame every curve again",
                                        layout=widgets.Layout(width="90px"))
         self.fit_axes.add_class("mh-fit-axes")
@@ -188,10 +192,15 @@ class HeatCapacityView(widgets.VBox):
         with self.model_line.hold_sync():
             self.model_line.x, self.model_line.y = x, compact(curves[ycol], log_y)
         with self.component_lines.hold_sync():
-            if state.show_components and ycol in ("C", "S") and len(model.components) > 1:
+            if state.show_components != "off" and ycol in ("C", "S") and len(model.components) > 1:
                 parts = contributions(model, T)
                 names = list(dict.fromkeys(parts["component"]))
                 ys = np.vstack([parts.loc[parts["component"] == n, ycol].to_numpy() for n in names])
+                if state.show_components == "stacked":
+                    # C and S add over components: each line is the sum of those before it,
+                    # so the gaps between lines are the components and the last is the model
+                    ys = np.cumsum(ys, axis=0)[:-1]
+                    names = [" + ".join(names[:k + 1]) for k in range(len(names) - 1)]
                 self.component_lines.x, self.component_lines.y = x, compact(ys, log_y)
                 self.component_lines.labels = names
             else:

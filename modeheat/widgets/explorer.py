@@ -27,7 +27,7 @@ from ..thermo import CAUTION
 from ..models import Component, Dilatation, Electronic, Mixture, PhononDOS
 from ..representations import temperature_curves
 from ..spectrum import Spectrum
-from .curves_view import REPRESENTATIONS, HeatCapacityView
+from .curves_view import COMPONENT_VIEWS, REPRESENTATIONS, HeatCapacityView
 from .editor import BranchEditor
 from .spectrum_view import UNITS, SpectrumView
 from .status import StatusArea
@@ -61,7 +61,9 @@ class ExplorerState:
     reduced : bool — the spectrum view shows g/ω² and the Debye level
     representation : str — one of :data:`~modeheat.widgets.curves_view.REPRESENTATIONS`
     log_t, log_y : bool — log temperature axis; log axis of C and S
-    show_components : bool — draw each component's C or S as well
+    show_components : str — each component's C or S: "off", "overlaid" (each on its own)
+        or "stacked" (running sums, the last equal to the model); ``True``/``False`` from
+        sessions saved before stacking existed read as "overlaid"/"off"
     window : (float, float) — the fit's temperature window in K
     vary : frozenset of str — parameters the fit varies, keyed "name.field"
     """
@@ -75,7 +77,7 @@ class ExplorerState:
     representation: str = "C"
     log_t: bool = True
     log_y: bool = False
-    show_components: bool = False
+    show_components: str = "off"
     window: tuple = DEFAULT_RANGE
     vary: frozenset = frozenset()
 
@@ -95,6 +97,12 @@ class ExplorerState:
             raise InputError(f"the temperature window must be 0 < from < to, not {lo:g}–{hi:g} K")
         object.__setattr__(self, "window", (lo, hi))
         object.__setattr__(self, "vary", frozenset(self.vary))
+        shown = self.show_components
+        if isinstance(shown, bool):  # a session saved before "stacked" existed
+            shown = "overlaid" if shown else "off"
+        if shown not in COMPONENT_VIEWS:
+            raise InputError(f"show_components must be one of {', '.join(COMPONENT_VIEWS)}, not {self.show_components!r}")
+        object.__setattr__(self, "show_components", shown)
         if self.atoms is not None and not 0 < self.atoms < math.inf:
             raise InputError(f"atoms per formula unit must be a positive number, not {self.atoms!r}")
 
