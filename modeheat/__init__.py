@@ -68,6 +68,13 @@ __all__ = [
     "invert_heat_capacity",
     "InversionResult",
     "InversionWarning",
+    # quasi-harmonic: spectra at several volumes → C_p, V(T), α(T), Grüneisen
+    "VolumeSet",
+    "QuasiHarmonic",
+    "QuasiHarmonicWarning",
+    "quasi_harmonic",
+    "moment_gruneisen",
+    "fit_eos",
     # spring-model lattices (a subpackage); plot-ready curves for views and figures (a module)
     "lattice",
     "representations",
@@ -115,6 +122,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
         "zero_point_energy",
     ),
     "inversion": ("InversionResult", "InversionWarning", "invert_heat_capacity"),
+    "quasiharmonic": ("QuasiHarmonic", "QuasiHarmonicWarning", "VolumeSet", "fit_eos", "moment_gruneisen", "quasi_harmonic"),
     "cp_cv": ("cp_from_cv", "cv_from_cp", "nernst_lindemann_coefficient"),
     "io": ("HeatCapacityWarning", "read_heat_capacity", "read_spectrum", "write_table"),
     "fitting": (
@@ -130,7 +138,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
 }
 _LAZY = {name: module for module, names in _HOMES.items() for name in names}
 # Submodules and subpackages reachable as attributes (``modeheat.io``); lattice, representations and progress are in __all__.
-_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "inversion", "io", "lattice", "models", "progress", "representations", "spectrum", "units")
+_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "inversion", "io", "lattice", "models", "progress", "quasiharmonic", "representations", "spectrum", "units")
 
 
 def _version() -> str:
