@@ -276,6 +276,8 @@ class Component(Documented):
     """
 
     kind: ClassVar[str] = "component"
+    #: True for a term whose heat capacity is already C_p (a quasi-harmonic solid)
+    gives_cp: ClassVar[bool] = False
     _continuous: ClassVar[tuple[str, ...]] = ()
     _checks: ClassVar[dict] = {}  # field → validator(kind, label, value) returning the clean value
 
@@ -658,6 +660,12 @@ class Mixture(Documented):
             used.add(label)
             named.append(c if label == c.name else dataclasses.replace(c, name=label))
         object.__setattr__(self, "components", tuple(named))
+        gives_cp = [c.name for c in named if c.gives_cp]
+        if gives_cp and any(isinstance(c, Dilatation) for c in named):
+            raise InputError(
+                f"{gives_cp[0]} already gives C_p (its own C_p − C_v); a Dilatation term beside it would count "
+                "C_p − C_v twice: remove one of them"
+            )
         if self.check not in ("error", "warn"):
             raise InputError(f"check must be 'error' or 'warn', not {self.check!r}")
         if self.atoms is not None:

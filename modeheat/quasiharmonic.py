@@ -659,6 +659,7 @@ class QuasiHarmonic(Component):
     eos: str = "auto"
     name: str | None = None
     kind: ClassVar[str] = "qh"
+    gives_cp: ClassVar[bool] = True
     _continuous: ClassVar[tuple[str, ...]] = ("scale",)
     _checks: ClassVar[dict] = {"scale": _positive}
 

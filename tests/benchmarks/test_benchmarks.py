@@ -98,3 +98,13 @@ def test_inversion_benchmark_prints_times(capsys):
     assert "target" in out and times["core_s"] > 0
     # the benchmark's inversion must fit within the noise, whatever its speed (seeded data)
     assert 0.5 < times["chi2_red"] < 1.5
+
+
+def test_quasiharmonic_benchmark_prints_times(capsys):
+    from bench_quasiharmonic import main
+
+    result = main()
+    out = capsys.readouterr().out
+    print(out)
+    # Grüneisen's rule (common practice): frequencies scaling as V^-2 give γ = 2; speed is reported
+    assert "target" in out and abs(result["gamma"] - 2.0) < 2e-3
