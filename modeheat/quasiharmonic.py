@@ -91,6 +91,8 @@ _ENERGY_ALIASES = {k.lower(): k for k in ENERGY_UNITS} | {"hartree": "Ha", "rydb
 
 #: Fewest volumes a quasi-harmonic table takes: the equations of state have 4 parameters.
 MIN_VOLUMES = 4
+_LARGEST_RATIO = 4.0  # largest V_max/V_min: far beyond any compression a solid's EOS is fitted over
+_LARGEST_ENERGY = 1e30  # in the set's unit; keeps molar energies and their cubic fits finite
 
 _GPA = 1e9
 
@@ -104,6 +106,14 @@ def _unit(kind: str, unit: str, aliases: dict, known: dict) -> str:
     if name is None:
         raise InputError(f"{kind} unit must be one of {', '.join(known)}, not {unit!r}")
     return name
+
+
+def _pressure(value, prefix: str = "") -> float:
+    """A pressure in GPa: finite and no larger in size than 10⁶ GPa (beyond any solid)."""
+    p = _checks.number(f"{prefix}pressure (GPa)", value)
+    if not (math.isfinite(p) and abs(p) <= 1e6):
+        raise InputError(f"{prefix}pressure must be a finite number of GPa no larger than 1e6 in size, not {value!r}")
+    return p
 
 
 # --- equations of state (published forms) ---------------------------------------------------------
@@ -252,9 +262,17 @@ def _newton_volume(coef, v_ref, V, pressure, *, form, vinet=None):
 
 
 def _fit_vinet(V: np.ndarray, E: np.ndarray, start: tuple) -> EOSFit:
-    """Vinet fits to E (n_vol, n_fits) by damped Gauss–Newton (Levenberg–Marquardt), E₀ linear."""
+    """Vinet fits to E (n_vol, n_fits) by damped Gauss–Newton (Levenberg–Marquardt), E₀ linear.
+
+    Starts from the Birch–Murnaghan parameters (the sampled minimum and a typical B₀′ = 4
+    where those are unusable); a fit that ends non-finite or with V₀ far outside the
+    volumes gets an infinite misfit.
+    """
     _, V0, B0, Bp = (np.array(p, dtype=float) for p in start)
-    Bp = np.where(np.abs(Bp - 1.0) < 0.1, 1.1, Bp)
+    usable = np.isfinite(V0) & np.isfinite(B0) & np.isfinite(Bp) & (B0 > 0) & (V0 > V[0] / 3) & (V0 < 3 * V[-1])
+    V0 = np.where(usable, V0, V[np.argmin(E, axis=0)])
+    B0 = np.where(usable, B0, np.maximum(np.ptp(E, axis=0), 1.0) / np.ptp(V) * 10.0)
+    Bp = np.where(usable & (Bp > 1.0) & (Bp < 20.0), Bp, 4.0)
     p = np.stack([np.log(V0), np.log(np.maximum(B0, 1e-30)), Bp], axis=1)  # (n, 3)
     n = E.shape[1]
 
@@ -277,7 +295,12 @@ def _fit_vinet(V: np.ndarray, E: np.ndarray, start: tuple) -> EOSFit:
         A = JT @ np.transpose(J, (1, 0, 2))  # (n, 3, 3)
         g = JT @ np.transpose(r)[:, :, None]  # (n, 3, 1)
         A = A + lam[:, None, None] * np.eye(3) * np.diagonal(A, axis1=1, axis2=2)[:, :, None].clip(1e-300)
-        step = -np.linalg.solve(A, g)[:, :, 0]
+        # a singular or non-finite system (a flat or broken misfit) takes no step at that T
+        good = np.isfinite(A).all(axis=(1, 2)) & np.isfinite(g).all(axis=(1, 2))
+        good[good] &= np.abs(np.linalg.det(A[good])) > 1e-300
+        step = np.zeros_like(p)
+        if good.any():
+            step[good] = -np.linalg.solve(A[good], g[good])[:, :, 0]
         q = p + step
         q[:, 2] = np.where(np.abs(q[:, 2] - 1.0) < 1e-3, p[:, 2], q[:, 2])
         r2, e02 = misfit(q)
@@ -291,7 +314,9 @@ def _fit_vinet(V: np.ndarray, E: np.ndarray, start: tuple) -> EOSFit:
         lam = np.where(better, lam * 0.3, lam * 10.0)
         if np.all(small | (lam > 1e12)):
             break
-    return EOSFit("vinet", e0, np.exp(p[:, 0]), np.exp(p[:, 1]), p[:, 2], np.sqrt(cost / V.size))
+    V0, B0 = np.exp(p[:, 0]), np.exp(p[:, 1])
+    valid = np.isfinite(cost) & np.isfinite(p).all(axis=1) & (V0 > V[0] / 3.0) & (V0 < 3.0 * V[-1])
+    return EOSFit("vinet", e0, V0, B0, p[:, 2], np.where(valid, np.sqrt(cost / V.size), np.inf))
 
 
 def fit_eos(volumes, energies, form: str = "birch-murnaghan", *, volume_unit: str = "A3",
@@ -313,7 +338,10 @@ def fit_eos(volumes, energies, form: str = "birch-murnaghan", *, volume_unit: st
     """
     vs = VolumeSet(volumes, energies, None, volume_unit=volume_unit, energy_unit=energy_unit)
     V, E = vs.molar_volumes(), vs.molar_energies()[:, None]
-    fit = _fit_forms(V, E, form)
+    with np.errstate(all="ignore"):
+        fit = _fit_forms(V, E, form)
+    if not (np.isfinite(fit.rms[0]) and fit.B0[0] > 0 and np.isfinite([fit.V0[0], fit.B0_prime[0]]).all()):
+        raise InputError(f"the {form} form does not fit these energies: they need a minimum inside or near the volumes")
     ku, ke = VOLUME_UNITS[vs.volume_unit], ENERGY_UNITS[vs.energy_unit]
     return {"E0": float(fit.E0[0]) / ke, "V0": float(fit.V0[0]) / ku, "B0": float(fit.B0[0]) / _GPA,
             "B0_prime": float(fit.B0_prime[0]), "rms": float(fit.rms[0]) / ke}
@@ -384,6 +412,10 @@ class VolumeSet:
         bad = np.flatnonzero(V <= 0)
         if bad.size:
             raise InputError(f"volume {bad[0] + 1} is {V[bad[0]]:g}: volumes must be > 0", index=int(bad[0]))
+        bad = np.flatnonzero(np.abs(E) > _LARGEST_ENERGY)
+        if bad.size:
+            raise InputError(f"energy {bad[0] + 1} is {E[bad[0]]:g} {self.energy_unit}: beyond any static energy "
+                             f"of a solid (at most {_LARGEST_ENERGY:g} in size)", index=int(bad[0]))
         steps = np.diff(V)
         bad = np.flatnonzero(steps <= 0)
         if bad.size:
@@ -391,6 +423,11 @@ class VolumeSet:
             word = "repeats" if steps[bad[0]] == 0 else "is below"
             raise InputError(f"volume {i + 1} ({V[i]:g} {self.volume_unit}) {word} volume {i} ({V[i - 1]:g}): "
                              "give each volume once, in increasing order", index=i)
+        if V[-1] > _LARGEST_RATIO * V[0]:
+            raise InputError(
+                f"the volumes span {V[0]:g}–{V[-1]:g} {self.volume_unit}, more than a factor {_LARGEST_RATIO:g}: an "
+                "equation of state fitted across that describes no solid (quasi-harmonic sets span a few per cent "
+                "to some tens of per cent)")
         V.setflags(write=False)
         E.setflags(write=False)
         set_(self, "volumes", V)
@@ -456,6 +493,35 @@ def _sampled(vs: VolumeSet, T: np.ndarray, scale: float) -> dict[str, np.ndarray
     return {k: np.array(v) for k, v in out.items()}
 
 
+def _solve(V, F, sampled, P, eos):
+    """Fit the EOS at every T and solve for V(T): (form, rms by form, (V, ok, B, G, S, ∂S/∂V, C_v))."""
+    coef_f, v_ref, rms_bm = _fit_polynomial(V, F)
+    coef_s = _fit_polynomial(V, sampled["S"])[0]
+    coef_c = _fit_polynomial(V, sampled["Cv"])[0]
+    pressure = np.full(F.shape[1], P)
+    rms = {"birch-murnaghan": float(np.max(rms_bm))}
+    vin = None
+    if eos in ("auto", "vinet"):
+        vin = _fit_vinet(V, F, _bm_parameters(coef_f, v_ref, V))
+        rms["vinet"] = float(np.max(vin.rms))
+    form = eos
+    if eos == "auto":  # Vinet only when clearly better: a tie (4 volumes, both exact) keeps BM3
+        form = "vinet" if rms["vinet"] < rms["birch-murnaghan"] * (1.0 - 1e-6) - 1e-9 else "birch-murnaghan"
+    if form == "birch-murnaghan":
+        v_eq, ok = _newton_volume(coef_f, v_ref, V, pressure, form=form)
+        g0, _, g2, _ = _poly_derivatives(coef_f, v_eq, v_ref)
+        B, G = v_eq * g2, g0 + P * v_eq
+    else:
+        params = (vin.E0, vin.V0, vin.B0, vin.B0_prime)
+        v_eq, ok = _newton_volume(None, v_ref, V, pressure, form=form, vinet=params)
+        B = _vinet_parts(v_eq, vin.V0, vin.B0, vin.B0_prime)[1]
+        G = vinet_energy(v_eq, *params) + P * v_eq
+        ok &= np.isfinite(vin.rms)
+    s0, s1, _, _ = _poly_derivatives(coef_s, v_eq, v_ref)
+    cv = _poly_derivatives(coef_c, v_eq, v_ref)[0]
+    return form, rms, (v_eq, ok, B, G, s0, s1, cv)
+
+
 def quasi_harmonic(volume_set: VolumeSet, temperatures, *, pressure: float = 0.0, eos: str = "auto",
                    scale: float = 1.0, warn: bool = True) -> pd.DataFrame:
     """Quasi-harmonic thermodynamics at a pressure, per temperature.
@@ -477,7 +543,7 @@ def quasi_harmonic(volume_set: VolumeSet, temperatures, *, pressure: float = 0.0
         ``T`` [K], ``V`` [the set's volume unit], ``B_T`` [GPa], ``alpha_V`` [1/K],
         ``Cv`` (at V(T)) and ``Cp`` [J/(mol K)], ``S`` [J/(mol K)], ``G`` and ``H`` [J/mol]
         (static energy, zero point and pressure term included), ``gamma`` (thermodynamic
-        Grüneisen parameter; NaN where C_v = 0, at T = 0) and ``extrapolated`` (V(T)
+        Grüneisen parameter; at T = 0 its limit γ(−3), :func:`moment_gruneisen`) and ``extrapolated`` (V(T)
         outside the sampled volumes), per mole of formula units.  ``attrs``: ``units``,
         ``eos`` (the form used), ``eos_rms`` (largest RMS misfit of each form fitted, J/mol),
         ``pressure`` [GPa], ``scale``, ``atoms``, ``volume_unit``, ``extrapolated_from``
@@ -501,7 +567,7 @@ def quasi_harmonic(volume_set: VolumeSet, temperatures, *, pressure: float = 0.0
         raise InputError("this volume set has no spectra: quasi-harmonic results need the DOS at each volume")
     if eos not in ("auto", *EOS_FORMS):
         raise InputError(f"eos must be 'auto' or one of {', '.join(EOS_FORMS)}, not {eos!r}")
-    P = _checks.number("pressure (GPa)", pressure) * _GPA
+    P = _pressure(pressure) * _GPA
     scale = _positive("quasi-harmonic", "scale", scale)
     T = np.atleast_1d(np.asarray(temperatures, dtype=float))
     if T.ndim != 1 or T.size == 0:
@@ -514,39 +580,22 @@ def quasi_harmonic(volume_set: VolumeSet, temperatures, *, pressure: float = 0.0
     V = volume_set.molar_volumes()
     sampled = _sampled(volume_set, T, scale)
     F = volume_set.molar_energies()[:, None] + sampled["F"]
-    coef_f, v_ref, rms_bm = _fit_polynomial(V, F)
-    coef_s = _fit_polynomial(V, sampled["S"])[0]
-    coef_c = _fit_polynomial(V, sampled["Cv"])[0]
-    pressure_array = np.full(T.size, P)
-
-    fits = {"birch-murnaghan": None, "vinet": None}
-    rms = {"birch-murnaghan": float(np.max(rms_bm))}
-    if eos in ("auto", "vinet"):
-        e0, V0, B0, Bp = _bm_parameters(coef_f, v_ref, V)
-        vin = _fit_vinet(V, F, (e0, V0, B0, Bp))
-        fits["vinet"] = vin
-        rms["vinet"] = float(np.max(vin.rms))
-    form = eos
-    if eos == "auto":  # Vinet only when clearly better: a tie (4 volumes, both exact) keeps BM3
-        form = "vinet" if rms["vinet"] < rms["birch-murnaghan"] * (1.0 - 1e-6) - 1e-9 else "birch-murnaghan"
-
-    if form == "birch-murnaghan":
-        v_eq, ok = _newton_volume(coef_f, v_ref, V, pressure_array, form=form)
-        g0, g1, g2, _ = _poly_derivatives(coef_f, v_eq, v_ref)
-        B = v_eq * g2
-        G = g0 + P * v_eq
-    else:
-        vin = fits["vinet"]
-        params = (vin.E0, vin.V0, vin.B0, vin.B0_prime)
-        v_eq, ok = _newton_volume(None, v_ref, V, pressure_array, form=form, vinet=params)
-        _, B = _vinet_parts(v_eq, vin.V0, vin.B0, vin.B0_prime)
-        G = vinet_energy(v_eq, *params) + P * v_eq
-    s0, s1, _, _ = _poly_derivatives(coef_s, v_eq, v_ref)
-    cv = _poly_derivatives(coef_c, v_eq, v_ref)[0]
-    alpha = s1 / B
-    cp = cv + alpha**2 * B * v_eq * T
-    with np.errstate(divide="ignore", invalid="ignore"):
-        gamma = np.where(cv > 0, alpha * B * v_eq / np.where(cv > 0, cv, 1.0), np.nan)
+    # Odd energy curves (no minimum, a maximum, a kink) make the fits and roots non-finite
+    # there: such rows are found below and left out with a warning, never returned as NaN.
+    with np.errstate(all="ignore"):
+        form, rms, (v_eq, ok, B, G, s0, s1, cv) = _solve(V, F, sampled, P, eos)
+        alpha = s1 / B
+        cp = cv + alpha**2 * B * v_eq * T
+        gamma = np.where(cv > 0, alpha * B * v_eq / np.where(cv > 0, cv, 1.0), 0.0)
+        ok &= (B > 0) & np.isfinite(np.stack([v_eq, B, G, s0, alpha, cv, cp, gamma])).all(axis=0)
+    if not ok.any():
+        raise InputError(
+            f"F + PV has no minimum near the sampled volumes at any temperature asked for ({pressure:g} GPa): "
+            "the static energies must have a minimum inside or near the volumes (or the pressure must hold the solid)")
+    cold = ok & ~(cv > 0)
+    if cold.any():
+        # at T → 0 only the ω² bottom is excited: γ_th → γ(−3) = −d ln θ(−3)/d ln V (common practice)
+        gamma[cold] = _moment_gamma(volume_set, -3, v_eq[cold] / VOLUME_UNITS[volume_set.volume_unit])
 
     keep = np.ones(T.size, dtype=bool)
     if not ok.all():
@@ -579,6 +628,15 @@ def quasi_harmonic(volume_set: VolumeSet, temperatures, *, pressure: float = 0.0
     return frame
 
 
+def _moment_gamma(volume_set: VolumeSet, n: float, volumes: np.ndarray) -> np.ndarray:
+    """γ(n) = −d ln θ(n)/d ln V at `volumes` (the set's unit) from a quadratic in ln V."""
+    theta = np.array([sp.moment_debye_temperature(n) for sp in volume_set.spectra])
+    if not np.all(np.isfinite(theta) & (theta > 0)):
+        raise InputError(f"θ({n:g}) is not defined for every spectrum of the set")
+    slope = np.polyder(np.polyfit(np.log(volume_set.volumes), np.log(theta), 2))
+    return -np.polyval(slope, np.log(volumes))
+
+
 def moment_gruneisen(volume_set: VolumeSet, orders: Sequence[float] = (-3, -2, -1, 0, 1, 2)) -> pd.DataFrame:
     """Moment Grüneisen parameters γ(n) = −d ln θ(n)/d ln V at each sampled volume.
 
@@ -594,15 +652,10 @@ def moment_gruneisen(volume_set: VolumeSet, orders: Sequence[float] = (-3, -2, -
     """
     if not isinstance(volume_set, VolumeSet) or volume_set.spectra is None:
         raise InputError("moment_gruneisen needs a VolumeSet with spectra")
-    lnV = np.log(volume_set.volumes)
     out = {"V": volume_set.volumes.copy()}
     for n in orders:
-        theta = np.array([sp.moment_debye_temperature(n) for sp in volume_set.spectra])
-        if not np.all(np.isfinite(theta) & (theta > 0)):
-            raise InputError(f"θ({n:g}) is not defined for every spectrum of the set")
-        slope = np.polyder(np.polyfit(lnV, np.log(theta), 2))
-        out[f"theta({n:g})"] = theta
-        out[f"gamma({n:g})"] = -np.polyval(slope, lnV)
+        out[f"theta({n:g})"] = np.array([sp.moment_debye_temperature(n) for sp in volume_set.spectra])
+        out[f"gamma({n:g})"] = _moment_gamma(volume_set, n, volume_set.volumes)
     frame = pd.DataFrame(out)
     frame.attrs["units"] = {"V": volume_set.volume_unit} | {k: ("K" if k.startswith("theta") else "1") for k in out if k != "V"}
     return frame
@@ -668,7 +721,7 @@ class QuasiHarmonic(Component):
             raise InputError(f"{self.kind}: volumes must be a VolumeSet with spectra")
         if self.eos not in ("auto", *EOS_FORMS):
             raise InputError(f"{self.kind}: eos must be 'auto' or one of {', '.join(EOS_FORMS)}, not {self.eos!r}")
-        object.__setattr__(self, "pressure", _checks.number(f"{self.kind}: pressure (GPa)", self.pressure))
+        object.__setattr__(self, "pressure", _pressure(self.pressure, f"{self.kind}: "))
         super().__post_init__()
 
     @property

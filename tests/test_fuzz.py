@@ -17,6 +17,7 @@ import numpy as np
 import pandas as pd
 import pytest
 from fuzzing import (
+    _mostly,
     cp_files,
     dos_files,
     examples,
@@ -245,3 +246,41 @@ def test_invert_heat_capacity(data, method, electronic, cp_to_cv):
     # few examples: each inversion scans 17 strengths; band="none" keeps it to one solve each
     outcome(lambda: mh.invert_heat_capacity(data, method=method, electronic=electronic, band="none",
                                             cp_to_cv=cp_to_cv))
+
+
+@lru_cache(maxsize=None)
+def _debye_like(theta: float) -> mh.Spectrum:
+    nu = np.linspace(0.0, theta / 47.99, 200)  # THz; an invented ν² shape, 3 modes
+    return mh.Spectrum(nu, 9.0 * nu**2 / nu[-1] ** 3, unit="THz", atoms=1)
+
+
+@examples(150)
+@given(
+    volumes=_mostly(  # a valid set, mostly: the numerics are the target, not only the checks
+        st.tuples(st.floats(min_value=1e-3, max_value=1e4),
+                  st.lists(st.floats(min_value=0.0, max_value=0.6), min_size=4, max_size=7, unique=True)).map(
+            lambda b: [b[0] * (1.0 + f) for f in sorted(b[1])]),
+        st.lists(st.one_of(st.floats(min_value=1e-3, max_value=1e4), numbers), min_size=0, max_size=7),
+        4,
+    ),
+    energies=_mostly(st.one_of(  # a bowl (a solid), or anything finite
+        st.tuples(st.floats(min_value=-10.0, max_value=10.0), st.floats(min_value=0.05, max_value=20.0),
+                  st.floats(min_value=0.0, max_value=1.0)).map(
+            lambda p: [p[0] + p[1] * (k / 6.0 - p[2]) ** 2 for k in range(7)]),
+        st.lists(st.floats(min_value=-1e3, max_value=1e3), min_size=7, max_size=7)),
+        st.lists(numbers, min_size=7, max_size=7), 4),
+    thetas=st.one_of(  # a smooth family, or anything
+        st.sampled_from([1.0, 2.0, 3.0]).map(lambda g: [300.0 * (1.0 + 0.02 * k) ** -g for k in range(7)]),
+        st.lists(st.sampled_from([5.0, 150.0, 300.0, 300.5, 2e4]), min_size=7, max_size=7),
+    ),
+    pressure=st.sampled_from([0.0, 0.0, 5.0, -2.0, 1e3, float("nan")]),
+    eos=st.sampled_from(["auto", "birch-murnaghan", "vinet"]),
+    T=temperatures,
+)
+def test_quasi_harmonic(volumes, energies, thetas, pressure, eos, T):
+    def call():
+        spectra = [_debye_like(t) for t in thetas[: len(volumes)]]
+        volume_set = mh.VolumeSet(volumes, energies[: len(volumes)], spectra)
+        return mh.quasi_harmonic(volume_set, T, pressure=pressure, eos=eos, warn=False)
+
+    outcome(call)

@@ -200,7 +200,8 @@ def test_zero_temperature_row_and_units():
     vs, thetas, energies = family()
     table = quasi_harmonic(vs, [0.0, 1.0])
     assert table.loc[0, "Cp"] == 0 and table.loc[0, "S"] == 0 and table.loc[0, "alpha_V"] == 0
-    assert np.isnan(table.loc[0, "gamma"])  # documented: no γ where C_v = 0
+    # at T = 0, the limit of γ_th: γ(−3) of the ω² bottom (here every θ ∝ V^−2, so 2)
+    assert table.loc[0, "gamma"] == pytest.approx(2.0, rel=1e-6)
     assert table.attrs["units"]["B_T"] == "GPa" and table.attrs["atoms"] == ATOMS
     assert "verify" in table.attrs["caution"].lower()
     # G(0) = min over V of E₀ + zero point (reference: the fitted static + 9Rθ/8 per atom, quadrature free)
