@@ -39,6 +39,7 @@ G and H in J/mol (per mole of formula units).
 from __future__ import annotations
 
 import dataclasses
+import functools
 import math
 import warnings
 from dataclasses import dataclass
@@ -677,7 +678,7 @@ class _QuasiHarmonicExcess:
             raise InputError(f"{q.name}: no minimum of F + PV from T = {float(T[len(table)]):g} K at "
                              f"{q.pressure:g} GPa; evaluate below that temperature")
         ref = q.reference_modes().evaluate(np.concatenate([[0.0], T]))
-        zero = q.table(np.zeros(1))
+        zero = q.zero_kelvin
         u_ref, f_ref = ref["u"][1:] - ref["u"][0], ref["f"][1:] - ref["f"][0]
         return ((table["Cp"].to_numpy() / R - ref["cv"][1:]),
                 (table["S"].to_numpy() / R - ref["s"][1:]),
@@ -737,9 +738,14 @@ class QuasiHarmonic(Component):
         """:func:`quasi_harmonic` of this term at `temperatures` (K)."""
         return quasi_harmonic(self.volumes, temperatures, pressure=self.pressure, eos=self.eos, scale=self.scale)
 
+    @functools.cached_property
+    def zero_kelvin(self) -> pd.DataFrame:
+        """The one-row table at T = 0 (computed once per term: the term is immutable)."""
+        return self.table(np.zeros(1))
+
     def reference(self) -> Spectrum:
         """The spectrum at the sampled volume nearest to the equilibrium volume at 0 K."""
-        v0 = float(self.table(np.zeros(1))["V"].iloc[0])
+        v0 = float(self.zero_kelvin["V"].iloc[0])
         return self.volumes.spectra[int(np.argmin(np.abs(self.volumes.volumes - v0)))]
 
     def reference_modes(self):
