@@ -72,11 +72,11 @@ def write_volume_files(folder: Path, stem: str = "invented_qh", volumes=VOLUMES,
     rows, written = [], []
     for k, (V, E) in enumerate(zip(volumes, energies), start=1):
         dos_name = f"{stem}_v{k}.txt"
-        rows.append(f"{V!r}, {E!r}, {dos_name}")
+        rows.append(f"{float(V)!r}, {float(E)!r}, {dos_name}")
         if k == missing:
             continue
         nu, g = debye_density(SHAPE["nu_D0"] * (V / SHAPE["V0"]) ** (-SHAPE["gamma"]), atoms)
-        body = "".join(f"{a!r}  {b!r}\n" for a, b in zip(nu, g))
+        body = "".join(f"{float(a)!r}  {float(b)!r}\n" for a, b in zip(nu, g))
         path = folder / dos_name
         path.write_text(f"# INVENTED test shape: a Debye density\n# atoms: {atoms:g}\nfrequency (THz)  total\n{body}",
                         encoding="utf-8")
