@@ -536,8 +536,8 @@ def _quasi_harmonic(args: argparse.Namespace) -> int:
             data = _read_cp(args.cp, args.cp_unit, volumes.atoms)
     _collect(caught)
     if len(table) == 0:
-        raise InputError(f"no temperature asked for has a minimum of F + PV at {args.pressure:g} GPa: "
-                         "nothing written", path=args.table)
+        raise InputError(f"F + PV has no minimum near the sampled volumes at any temperature asked for "
+                         f"({args.pressure:g} GPa): nothing written", path=args.table)
     problem = _qh_not_finite(table)
     if problem is not None:
         raise InputError(f"not written: {problem}", path=args.table)
@@ -653,8 +653,8 @@ Reads a volume table and the DOS file of each volume, fits an equation of
 state to F(V, T) = E0(V) + F_vib(V, T) at every temperature and writes, per
 temperature: V (the table's volume unit), B_T in GPa, alpha_V in 1/K, C_v at
 V(T) and C_p in J/(mol K), S in J/(mol K), G and H in J/mol and the
-thermodynamic Grüneisen parameter gamma (nan where C_v = 0, at T = 0), per mole
-of formula units, with the caution and the units as # lines.  The equation of
+thermodynamic Grüneisen parameter gamma, per mole of formula units, with the
+caution and the units as # lines.  The equation of
 state chosen and where V(T) leaves the sampled volumes (column 'extrapolated')
 are reported on standard error.
 

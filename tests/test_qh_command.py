@@ -204,4 +204,6 @@ def test_no_minimum_anywhere_writes_nothing(tmp_path, capsys, reader):
         code = main(["quasi-harmonic", str(table), "-o", str(tmp_path / "q.csv"), "--pressure", "-500",
                      "--temperatures", "100,200"])
     assert code == 1
-    assert "nothing written" in capsys.readouterr().err and not (tmp_path / "q.csv").exists()
+    err = capsys.readouterr().err.splitlines()
+    assert err[-1].startswith(f"modeheat: error: {table}") and "no minimum" in err[-1]
+    assert not (tmp_path / "q.csv").exists()

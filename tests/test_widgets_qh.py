@@ -122,6 +122,21 @@ def test_extrapolation_is_marked_and_noted():
     assert "quasi-harmonic: from T = " in e.status.message and e.status.kind == "info"
 
 
+def test_a_pressure_without_a_minimum_says_so_and_draws_nothing(vs):
+    e = Explorer(volumes=vs)
+    p = e.qh_panel
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        p.pressure.value = -500.0  # a tension far beyond the invented solid's strength
+    assert e.status.kind == "error" and "no minimum" in e.status.message and "Traceback" not in e.status.message
+    assert len(p.lines.x) == 0 and p.add_button.disabled and p.table is None
+    assert "no quasi-harmonic table" in p.summary.value
+    p.pressure.value = 0.0
+    want = mh.quasi_harmonic(vs, e.state.temperatures())
+    np.testing.assert_allclose(_rows(p.lines)[0], want["V"], rtol=F32)
+    assert not p.add_button.disabled
+
+
 def test_without_a_volume_set_the_panel_says_how_to_start():
     e = Explorer(model=mh.Debye(300.0), atoms=1)
     p = e.qh_panel

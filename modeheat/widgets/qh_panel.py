@@ -15,7 +15,7 @@ import bqplot as bq
 import ipywidgets as widgets
 import numpy as np
 
-from ..errors import InputError, ModeheatWarning
+from ..errors import InputError, ModeheatError, ModeheatWarning
 from ..quasiharmonic import EOS_FORMS, QuasiHarmonic, VolumeSet, quasi_harmonic
 from .curves_view import PALETTE, _bars, compact, same_objects
 from .status import StatusArea
@@ -188,19 +188,30 @@ class QuasiHarmonicPanel(widgets.VBox):
 
     # --- drawing -----------------------------------------------------------------------------------
     def _table(self):
-        """The quasi-harmonic table of the shown set at the controls' pressure and EOS (cached)."""
+        """The quasi-harmonic table of the shown set at the controls' pressure and EOS, or None
+        when it has no rows there (cached either way: the problem is said once, in `status`)."""
         T = self._temperatures
         key = (self._volumes, float(self.pressure.value), self.eos.value, float(T[0]), float(T[-1]), float(T.size))
         if self._computed is not None and same_objects(key, self._computed[0]):
             return self._computed[1]
         self._computed = None
+        problem = None
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", ModeheatWarning)
-            table = quasi_harmonic(self._volumes, T, pressure=self.pressure.value, eos=self.eos.value)
+            try:
+                table = quasi_harmonic(self._volumes, T, pressure=self.pressure.value, eos=self.eos.value)
+            except ModeheatError as exc:
+                table, problem = None, str(exc)
+        if table is not None and len(table) == 0:
+            table, problem = None, (f"F + PV has no minimum near the sampled volumes at any temperature shown "
+                                    f"({self.pressure.value:g} GPa)")
         self._computed = (key, table)
         for w in caught:
-            if issubclass(w.category, ModeheatWarning):
+            if issubclass(w.category, ModeheatWarning) and problem is None:
                 self.status.info(f"quasi-harmonic: {w.message}")
+        if problem is not None:
+            self.status.error(f"quasi-harmonic: {problem}")
+            self.summary.value = html.escape(f"no quasi-harmonic table at these settings: {problem}")
         return table
 
     def _redraw(self) -> None:
@@ -227,6 +238,10 @@ class QuasiHarmonicPanel(widgets.VBox):
             return
         table = self._table()
         self.table = table
+        if table is None:  # the status and summary say why
+            self._clear()
+            self.add_button.disabled = True
+            return
         self.add_button.disabled = False
         # A slider elsewhere in the Explorer redraws everything: send the marks only when
         # what they show changed (the table, the representation or the data).
