@@ -15,7 +15,7 @@ the output could not be written, 2 for bad usage.  Standard output carries only 
 table (with ``-o``, a one-line summary); warnings, the basis, the caution and
 progress go to standard error.
 
-The commands ``lab``, ``demo``, ``lowt`` and ``figure`` live in :mod:`modeheat.commands`
+The commands ``lab``, ``demo``, ``lowt``, ``figure`` and ``quasi-harmonic`` live in :mod:`modeheat.commands`
 and follow the same conventions.
 
 The backend (numpy, pandas, scipy) is imported inside the command, so ``modeheat
@@ -222,7 +222,8 @@ examples:
   modeheat demo --out demo-results              # the whole job headless
   modeheat table spectrum.txt --atoms 2         # thermodynamic table
   modeheat lowt cp.txt --tmax 5                 # γ, β, θ_D(0) from C_p
-  modeheat figure --dos dos.txt --cp cp.txt -o fig.pdf"""
+  modeheat figure --dos dos.txt --cp cp.txt -o fig.pdf
+  modeheat quasi-harmonic vols.txt -o qh.csv    # V(T), α, C_p from several volumes"""
 
 
 def build_parser() -> argparse.ArgumentParser:

@@ -8,7 +8,11 @@
   CSV tables, figures (PDF, SVG, PNG) and a text summary;
 - ``modeheat lowt FILE --tmax K`` fits C/T = γ + βT² (+ δT⁴) to a C_p file and prints γ, β
   and θ_D(0) with their standard errors;
-- ``modeheat figure --dos FILE --cp FILE -o OUT`` draws the multi-panel figure.
+- ``modeheat figure --dos FILE --cp FILE -o OUT`` draws the multi-panel figure;
+- ``modeheat quasi-harmonic TABLE -o OUT.csv`` reads a volume table and its DOS files
+  (:func:`modeheat.io.read_volume_set`) and writes the quasi-harmonic table — V, B_T,
+  α_V, C_v, C_p, S, G, H and γ against T at a pressure — with the caution, optionally
+  with its figure (:func:`modeheat.figures.quasi_harmonic_figure`).
 
 They follow the conventions of ``modeheat table`` (:mod:`modeheat.cli`): exit status 0
 success, 1 bad input or a file that cannot be written, 2 bad usage; errors in one line
@@ -20,6 +24,7 @@ from __future__ import annotations
 
 import argparse
 import importlib.util
+import math
 import os
 import secrets
 import signal
@@ -479,6 +484,101 @@ def _debye_model(data: pd.DataFrame, atoms: float | None):
     return result.model
 
 
+# --- quasi-harmonic ---------------------------------------------------------------------------------
+#: The equation-of-state choices (modeheat.quasiharmonic.EOS_FORMS and "auto"), spelled out
+#: here so that building the parser imports no backend.
+QH_EOS_CHOICES = ("auto", "birch-murnaghan", "vinet")
+
+
+def _pressure_arg(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        value = math.nan
+    if not math.isfinite(value):
+        raise argparse.ArgumentTypeError(f"expected a pressure in GPa (a finite number), not {text!r}")
+    return value
+
+
+def _check_quasi_harmonic_args(args: argparse.Namespace) -> None:
+    if args.figure is not None:
+        suffix = Path(args.figure).suffix.lower().lstrip(".")
+        if suffix and suffix not in FIGURE_FORMATS:
+            args.usage.error(f"--figure: the format {suffix!r} is not one of {', '.join(FIGURE_FORMATS)} (or give a stem)")
+    if args.cp is not None and args.figure is None:
+        args.usage.error("--cp draws measured C_p on the figure: give --figure too")
+
+
+def _quasi_harmonic(args: argparse.Namespace) -> int:
+    from .cli import _check_output
+
+    _check_output(args.output, [args.table], args.overwrite)
+    figure_paths = [] if args.figure is None else _figure_paths(args.figure)
+    _check_new(figure_paths, args.overwrite)
+    for path in figure_paths:
+        if not path.parent.is_dir():
+            raise InputError(f"the folder {str(path.parent)!r} does not exist", path=path)
+    figures = _figures() if figure_paths else None  # before any work
+    from .io.tables import write_table
+    from .io.volume_sets import read_volume_set
+    from .quasiharmonic import quasi_harmonic
+    from .thermo import CAUTION
+
+    data = None
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", ModeheatWarning)
+        volumes = read_volume_set(args.table, unit=args.unit, atoms=args.atoms)
+        try:
+            table = quasi_harmonic(volumes, args.temperatures, pressure=args.pressure, eos=args.eos)
+        except InputError as exc:
+            raise InputError(exc.problem, path=args.table) from None
+        if args.cp is not None:
+            data = _read_cp(args.cp, args.cp_unit, volumes.atoms)
+    _collect(caught)
+    if len(table) == 0:
+        raise InputError(f"F + PV has no minimum near the sampled volumes at any temperature asked for "
+                         f"({args.pressure:g} GPa): nothing written", path=args.table)
+    problem = _qh_not_finite(table)
+    if problem is not None:
+        raise InputError(f"not written: {problem}", path=args.table)
+    table.attrs.update(per="formula", source=f"{args.table} (quasi-harmonic, {table.attrs['eos']} equation of "
+                                              f"state, {args.pressure:g} GPa)")
+    write_table(table, args.output, overwrite=args.overwrite)
+    written = [args.output]
+    if figures is not None:
+        fig = figures.quasi_harmonic_figure(table, data=data)
+        written += [str(p) for p in figures.save_figure(fig, args.figure, overwrite=args.overwrite)]
+    sys.stdout.write(f"wrote {len(table)} rows to {args.output}"
+                     + (f"; the figure to {', '.join(written[1:])}" if len(written) > 1 else "") + "\n")
+    sys.stdout.flush()
+    rms = ", ".join(f"{form} {value:.3g} J/mol" for form, value in table.attrs["eos_rms"].items())
+    _say("note", f"{len(volumes)} volumes, {volumes.atoms:g} atom(s) per formula unit; equation of state: "
+         f"{table.attrs['eos']} (largest RMS misfit over the temperatures: {rms})")
+    if table.attrs["extrapolated_from"] is not None:
+        _say("note", f"V(T) is extrapolated beyond the sampled volumes from T = {table.attrs['extrapolated_from']:g} K "
+             "(column 'extrapolated')")
+    _say("note", "values " + table.attrs["basis"])
+    _say("caution", CAUTION)
+    return 0
+
+
+def _qh_not_finite(table: pd.DataFrame) -> str | None:
+    """Why a quasi-harmonic table must not be written: a non-finite value other than the
+    documented NaN Grüneisen parameter where C_v = 0 (at T = 0)."""
+    import numpy as np
+
+    T = table["T"].to_numpy(dtype=float)
+    for column in table.columns:
+        values = table[column].to_numpy(dtype=float)
+        bad = ~np.isfinite(values)
+        if column == "gamma":
+            bad &= ~(np.isnan(values) & (table["Cv"].to_numpy(dtype=float) == 0))
+        if bad.any():
+            first = int(np.flatnonzero(bad)[0])
+            return f"the table has non-finite values: {column} is {values[first]} at T = {T[first]:g} K"
+    return None
+
+
 # --- the parsers ------------------------------------------------------------------------------------
 _EXIT = """exit status:
   0 success; 1 bad input, or an output that exists (without --overwrite) or
@@ -548,9 +648,39 @@ examples:
   modeheat figure --cp cp.txt --atoms 1 -o cp_only.svg --overwrite"""
 
 
+_QH_EPILOG = f"""\
+Reads a volume table and the DOS file of each volume, fits an equation of
+state to F(V, T) = E0(V) + F_vib(V, T) at every temperature and writes, per
+temperature: V (the table's volume unit), B_T in GPa, alpha_V in 1/K, C_v at
+V(T) and C_p in J/(mol K), S in J/(mol K), G and H in J/mol and the
+thermodynamic Grüneisen parameter gamma, per mole of formula units, with the
+caution and the units as # lines.  The equation of
+state chosen and where V(T) leaves the sampled volumes (column 'extrapolated')
+are reported on standard error.
+
+volume tables:
+  UTF-8 text: '# volume unit: A3' (Å³ per formula unit; or cm3/mol, m3/mol),
+  '# energy unit: eV' (or meV, Ry, Ha, J/mol, kJ/mol), optional '# atoms: N'
+  and '# frequency unit: THz' lines, an optional header row, then one row per
+  volume, in increasing order:  volume, static energy, DOS file
+  (at least 4 volumes; DOS file names relative to the table's folder; each
+  DOS file in the format of 'modeheat table --help'), e.g.
+    # volume unit: A3
+    # energy unit: eV
+    volume, energy, dos file
+    15.625, -3.40512, quellium_qh_v1.txt
+
+{_EXIT}
+
+examples:
+  modeheat quasi-harmonic volumes.txt -o qh.csv
+  modeheat quasi-harmonic volumes.txt --pressure 5 --eos vinet --temperatures 10:1200:10 -o qh5.csv
+  modeheat quasi-harmonic volumes.txt -o qh.csv --figure qh_figure --cp cp.txt --overwrite"""
+
+
 def add_commands(commands: argparse._SubParsersAction) -> None:
-    """Add ``lab``, ``demo``, ``lowt`` and ``figure`` to the ``modeheat`` parser's commands."""
-    from .cli import _positive_float, _temperatures_arg, _unit_arg
+    """Add ``lab``, ``demo``, ``lowt``, ``figure`` and ``quasi-harmonic`` to the ``modeheat`` parser's commands."""
+    from .cli import DEFAULT_TEMPERATURES, _positive_float, _temperatures_arg, _unit_arg
 
     raw = argparse.RawDescriptionHelpFormatter
     lab = commands.add_parser(
@@ -619,3 +749,30 @@ def add_commands(commands: argparse._SubParsersAction) -> None:
     )
     figure.add_argument("--overwrite", action="store_true", help="replace existing output files")
     figure.set_defaults(run=_figure, check=_check_figure_args, usage=figure)
+
+    qh = commands.add_parser(
+        "quasi-harmonic",
+        help="quasi-harmonic table (V, α_V, B_T, C_p, …) of a volume table and its DOS files",
+        description="The quasi-harmonic thermodynamics of spectra at several volumes, as a CSV table "
+                    "(and a figure): V(T), B_T, α_V, C_v, C_p, S, G, H and the Grüneisen parameter at a pressure.",
+        epilog=_QH_EPILOG,
+        formatter_class=raw,
+    )
+    qh.add_argument("table", metavar="TABLE", help="volume table (volume, static energy, DOS file per row)")
+    qh.add_argument("-o", "--output", required=True, metavar="OUT.csv", help="the CSV file to write")
+    qh.add_argument("--pressure", type=_pressure_arg, default=0.0, metavar="GPA", help="pressure in GPa (default: 0)")
+    qh.add_argument("--eos", choices=QH_EOS_CHOICES, default="auto",
+                    help="equation of state fitted at each T: third-order Birch–Murnaghan, Vinet, or 'auto' "
+                         "(the better fitting, default)")
+    qh.add_argument(
+        "--temperatures", type=_temperatures_arg, default=DEFAULT_TEMPERATURES, metavar="SPEC",
+        help="temperatures in K: start:stop:step (stop included when on the grid) or a comma list "
+             f"(default: {DEFAULT_TEMPERATURES})",
+    )
+    qh.add_argument("--unit", type=_unit_arg, help="frequency unit of DOS files whose header gives none")
+    qh.add_argument("--atoms", type=_positive_float, help="atoms per formula unit of every DOS file")
+    qh.add_argument("--figure", metavar="OUT", help="also draw the figure: OUT.pdf, OUT.svg, OUT.png, or a stem for all three")
+    qh.add_argument("--cp", metavar="FILE", help="measured C_p drawn on the figure (the format of 'modeheat lowt --help')")
+    qh.add_argument("--cp-unit", metavar="UNIT", help="heat-capacity unit of the C_p file when its header gives none")
+    qh.add_argument("--overwrite", action="store_true", help="replace existing output files (never the volume table)")
+    qh.set_defaults(run=_quasi_harmonic, check=_check_quasi_harmonic_args, usage=qh)

@@ -12,6 +12,9 @@ backend.  Widths follow journal columns (:data:`WIDTHS`, inches).
   against T, with data and a residual panel when data are given;
 - :func:`inversion_figure` — a DOS recovered from heat capacity with its band, the fit
   and its normalised residuals (:func:`modeheat.invert_heat_capacity`);
+- :func:`quasi_harmonic_figure` — a quasi-harmonic table (:func:`modeheat.quasi_harmonic`):
+  V(T), α_V(T), C_p and C_v against T with measured data, and C_p − C_v, marking the
+  temperature from which the volume is extrapolated;
 - :func:`save_figure` — PDF and SVG (vector; TrueType fonts embedded in the PDF,
   ``pdf.fonttype`` 42; glyphs as paths in the SVG, ``svg.fonttype`` "path") and PNG at
   300 dpi, never overwriting a file unless asked, the caution in the metadata.
@@ -37,7 +40,8 @@ from .representations import data_residuals, plot_dos, reduced_dos, temperature_
 from .thermo import CAUTION
 from .units import R, check_unit
 
-__all__ = ["WIDTHS", "PALETTE", "KINDS", "FORMATS", "curve_figure", "paper_figure", "inversion_figure", "save_figure"]
+__all__ = ["WIDTHS", "PALETTE", "KINDS", "FORMATS", "curve_figure", "paper_figure", "inversion_figure",
+           "quasi_harmonic_figure", "save_figure"]
 
 #: Figure widths in inches: one journal column and the full page width.
 WIDTHS: dict[str, float] = {"single": 3.4, "double": 7.0}
@@ -420,6 +424,95 @@ def inversion_figure(result, *, width="double") -> Figure:
         for k, ax in enumerate((dos_ax, c_ax, res_ax)):
             ax.set_title(f"({chr(97 + k)})", loc="left")
     return fig
+
+
+#: Volume unit of a quasi-harmonic table → its axis label (mathtext).
+_VOLUME_LABELS = {"A3": r"$V$ (Å$^3$ per formula unit)", "cm3/mol": r"$V$ (cm$^3$ mol$^{-1}$)",
+                  "m3/mol": r"$V$ (m$^3$ mol$^{-1}$)"}
+#: The columns :func:`quasi_harmonic_figure` draws.
+_QH_COLUMNS = ("T", "V", "alpha_V", "Cv", "Cp")
+
+
+def quasi_harmonic_figure(table, data=None, *, width="double") -> Figure:
+    """A quasi-harmonic table as a figure: V(T), α_V(T), C_p and C_v, C_p − C_v.
+
+    Parameters
+    ----------
+    table : DataFrame — from :func:`modeheat.quasi_harmonic` (``T`` in K, ``V`` in its
+        ``attrs["volume_unit"]``, ``alpha_V`` in 1/K, ``Cv`` and ``Cp`` in J/(mol K) per
+        mole of formula units); its ``attrs["extrapolated_from"]`` (K), when set, is marked
+        on every panel by a dashed vertical line, the shaded part beyond it being where
+        the equation of state is extrapolated
+    data : DataFrame or list of DataFrame, optional — measured C_p as
+        :func:`~modeheat.io.read_heat_capacity` returns it (T in K, C and σ in J/(mol K)
+        per mole of formula units), drawn with error bars on the C_p panel
+    width : "single", "double" or float — panels two by two at double width (7 in),
+        stacked at single width (3.4 in) or below 5 in
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        (a) V against T, (b) α_V, (c) C_p and C_v with the data, (d) C_p − C_v, all
+        against T in K on a linear axis.
+
+    Raises
+    ------
+    InputError
+        Not a quasi-harmonic table (a column missing), an empty table, data that are not
+        heat-capacity tables, or an unknown width.
+    """
+    if not isinstance(table, pd.DataFrame) or not set(_QH_COLUMNS) <= set(table.columns):
+        raise InputError("quasi_harmonic_figure needs a table from modeheat.quasi_harmonic "
+                         f"(columns {', '.join(_QH_COLUMNS)})")
+    if len(table) == 0:
+        raise InputError("the quasi-harmonic table has no rows: nothing to draw")
+    sets = _data_sets(data)
+    if not all({"T", "C"} <= set(d.columns) for d in sets):
+        raise InputError("data must be heat-capacity tables with columns T and C (as read_heat_capacity returns)")
+    w = _width(width)
+    T = table["T"].to_numpy(dtype=float)
+    start = table.attrs.get("extrapolated_from")
+    with mpl.rc_context(_STYLE):
+        if w >= 5.0:
+            fig = Figure(figsize=(w, 0.62 * w), layout="constrained")
+            grid = fig.add_gridspec(2, 2)
+            cells = [grid[0, 0], grid[0, 1], grid[1, 0], grid[1, 1]]
+        else:
+            fig = Figure(figsize=(w, 2.0 * 4), layout="constrained")
+            grid = fig.add_gridspec(4, 1)
+            cells = [grid[k] for k in range(4)]
+        v_ax, a_ax, c_ax, d_ax = (fig.add_subplot(c) for c in cells)
+        v_ax.plot(T, table["V"].to_numpy(dtype=float), color=_colour(0), label="V", gid="V")
+        v_ax.set_ylabel(_VOLUME_LABELS.get(table.attrs.get("volume_unit"), r"$V$"))
+        a_ax.plot(T, table["alpha_V"].to_numpy(dtype=float), color=_colour(0), label=r"$\alpha_V$", gid="alpha_V")
+        a_ax.set_ylabel(r"$\alpha_V$ (K$^{-1}$)")
+        c_ax.plot(T, table["Cp"].to_numpy(dtype=float), color=_colour(0), label=r"$C_p$", gid="Cp", zorder=3)
+        c_ax.plot(T, table["Cv"].to_numpy(dtype=float), color=_colour(1), linestyle="--", label=r"$C_V$", gid="Cv",
+                  zorder=3)
+        for j, d in enumerate(sets):
+            # C is drawn as measured: the data's own columns (no representation to derive)
+            sigma = d["sigma"].to_numpy(dtype=float) if "sigma" in d.columns else None
+            c_ax.errorbar(d["T"].to_numpy(dtype=float), d["C"].to_numpy(dtype=float), yerr=sigma, fmt="o",
+                          color=_colour(2 + j),
+                          markerfacecolor="white", markeredgewidth=0.8, elinewidth=0.7,
+                          label=d.attrs.get("name") or f"data {j + 1}", zorder=4)
+        c_ax.set_ylabel(r"$C$ (J mol$^{-1}$ K$^{-1}$)")
+        c_ax.legend(loc="lower right")
+        d_ax.plot(T, (table["Cp"] - table["Cv"]).to_numpy(dtype=float), color=_colour(0), label=r"$C_p - C_V$",
+                  gid="Cp-Cv")
+        d_ax.set_ylabel(r"$C_p - C_V$ (J mol$^{-1}$ K$^{-1}$)")
+        axes = (v_ax, a_ax, c_ax, d_ax)
+        for k, ax in enumerate(axes):
+            ax.set_xlabel(r"$T$ (K)")
+            ax.set_title(f"({chr(97 + k)})", loc="left", fontweight="bold")
+            if start is not None and math.isfinite(start):
+                ax.axvspan(start, max(float(T.max()), start), color=_REFERENCE, alpha=0.12, linewidth=0)
+                ax.axvline(start, color=_REFERENCE, linestyle="--", linewidth=0.8, gid="extrapolated_from")
+        if start is not None and math.isfinite(start):
+            v_ax.annotate("V extrapolated", (start, 0.02), xycoords=("data", "axes fraction"), textcoords="offset points",
+                          xytext=(3, 0), color=_REFERENCE, fontsize=7)
+    return fig
+
 
 def save_figure(fig: Figure, path: str | os.PathLike, *, formats=None, overwrite: bool = False) -> list[Path]:
     """Write a figure as PDF, SVG and/or PNG; never replaces a file unless asked.

@@ -50,6 +50,7 @@ import pandas as pd
 from scipy import constants as _c
 
 from . import _checks
+from ._document import Documented
 from .errors import InputError, ModeheatWarning
 from .models import Component, PhononDOS, _positive
 from .spectrum import Spectrum
@@ -362,7 +363,7 @@ def _fit_forms(V: np.ndarray, E: np.ndarray, form: str) -> EOSFit:
 # --- the input: spectra at volumes ----------------------------------------------------------------
 
 @dataclass(frozen=True, eq=False)
-class VolumeSet:
+class VolumeSet(Documented):
     """Spectra of one solid at several volumes, with the static energy at each.
 
     Parameters

@@ -1,5 +1,6 @@
 """modeheat.figures: files of each format, their size in inches, embedded fonts, one
-image compared with a committed baseline, the paper figure, the Explorer's save button.
+image compared with a committed baseline, the paper figure, the quasi-harmonic figure,
+the Explorer's save button.
 
 The baseline ``tests/data/figure_debye_c.png`` is written by :func:`write_baseline`;
 regenerate it only deliberately (after a change to the figures' look), with
@@ -21,9 +22,18 @@ pytest.importorskip("matplotlib")
 
 from matplotlib.image import imread  # noqa: E402
 
-from modeheat import CAUTION, InputError, read_heat_capacity, read_spectrum  # noqa: E402
-from modeheat.figures import KINDS, WIDTHS, curve_figure, paper_figure, save_figure  # noqa: E402
+from modeheat import CAUTION, InputError, quasi_harmonic, read_heat_capacity, read_spectrum  # noqa: E402
+from modeheat.figures import (  # noqa: E402
+    KINDS,
+    WIDTHS,
+    curve_figure,
+    paper_figure,
+    quasi_harmonic_figure,
+    save_figure,
+)
 from modeheat.models import Debye, Dilatation, Electronic, Einstein, PhononDOS  # noqa: E402
+from modeheat.quasiharmonic import QuasiHarmonicWarning  # noqa: E402
+from volume_set_shapes import volume_set  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[1]
 BASELINE = ROOT / "tests" / "data" / "figure_debye_c.png"
@@ -202,6 +212,78 @@ def test_paper_figure_with_and_without_data(demo, tmp_path):
     assert _png_size(png)[0] == round(WIDTHS["double"] * 300)
     with pytest.raises(InputError, match="spectrum, a model"):
         paper_figure()
+
+
+# --- the quasi-harmonic figure ------------------------------------------------------------------------
+QH_T = np.linspace(5.0, 900.0, 120)
+
+
+@pytest.fixture(scope="module")
+def qh_table():
+    # reference for every drawn array: the backend's table (an invented Debye-like set, tests/volume_set_shapes.py)
+    return quasi_harmonic(volume_set(), QH_T)
+
+
+def _line(ax, gid):
+    (line,) = [ln for ln in ax.get_lines() if ln.get_gid() == gid]
+    return line
+
+
+def test_quasi_harmonic_figure_draws_the_tables_columns(qh_table, demo):
+    cp = read_heat_capacity(ROOT / "demo_spectra" / "quellium_cp.txt", atoms=1)  # invented data: a shape only
+    fig = quasi_harmonic_figure(qh_table, data=cp)
+    v_ax, a_ax, c_ax, d_ax = fig.axes
+    assert fig.get_size_inches()[0] == WIDTHS["double"]
+    T = qh_table["T"].to_numpy()
+    # reference: the quasi_harmonic table's columns, exactly
+    for ax, gid, column in ((v_ax, "V", qh_table["V"]), (a_ax, "alpha_V", qh_table["alpha_V"]),
+                            (c_ax, "Cp", qh_table["Cp"]), (c_ax, "Cv", qh_table["Cv"]),
+                            (d_ax, "Cp-Cv", qh_table["Cp"] - qh_table["Cv"])):
+        line = _line(ax, gid)
+        np.testing.assert_array_equal(line.get_xdata(), T)
+        np.testing.assert_array_equal(line.get_ydata(), column.to_numpy())
+    # the data with their error bars, as read
+    assert len(c_ax.containers) == 1 and c_ax.containers[0].has_yerr
+    np.testing.assert_array_equal(c_ax.containers[0].lines[0].get_xdata(), cp["T"].to_numpy())
+    np.testing.assert_array_equal(c_ax.containers[0].lines[0].get_ydata(), cp["C"].to_numpy())
+    assert "Å" in v_ax.get_ylabel() and all(ax.get_xlabel() == "$T$ (K)" for ax in fig.axes)
+    # nothing extrapolated in this table: no mark
+    assert qh_table.attrs["extrapolated_from"] is None
+    assert not any(ln.get_gid() == "extrapolated_from" for ax in fig.axes for ln in ax.get_lines())
+
+
+def test_quasi_harmonic_figure_marks_the_extrapolation(tmp_path):
+    # volumes up to 16.6 Å³ only: V(T) of this shape passes it below 900 K
+    with pytest.warns(QuasiHarmonicWarning, match="extrapolated"):
+        table = quasi_harmonic(volume_set(np.linspace(15.0, 16.6, 6)), QH_T)
+    start = table.attrs["extrapolated_from"]
+    assert start is not None and table["extrapolated"].any()
+    # reference: the first T of the table's own 'extrapolated' column
+    assert start == table.loc[table["extrapolated"], "T"].iloc[0]
+    fig = quasi_harmonic_figure(table, width="single")
+    assert fig.get_size_inches()[0] == WIDTHS["single"] and len(fig.axes) == 4
+    for ax in fig.axes:
+        mark = _line(ax, "extrapolated_from")
+        assert list(mark.get_xdata()) == [start, start]
+    written = save_figure(fig, tmp_path / "qh")
+    assert [p.suffix for p in written] == [".pdf", ".svg", ".png"]
+    assert written[0].read_bytes()[:4] == b"%PDF" and b"/FontFile2" in written[0].read_bytes()
+    assert "<text" not in written[1].read_text(encoding="utf-8")
+    px, _ = _png_size(written[2])
+    assert abs(px / 300 - WIDTHS["single"]) <= 1 / 300
+
+
+def test_quasi_harmonic_figure_refuses_what_it_cannot_draw(qh_table):
+    with pytest.raises(InputError, match="quasi_harmonic"):
+        quasi_harmonic_figure(qh_table.drop(columns="alpha_V"))
+    with pytest.raises(InputError, match="quasi_harmonic"):
+        quasi_harmonic_figure(Debye(theta=300.0))
+    with pytest.raises(InputError, match="no rows"):
+        quasi_harmonic_figure(qh_table.iloc[:0])
+    with pytest.raises(InputError, match="heat-capacity table"):
+        quasi_harmonic_figure(qh_table, data=[1, 2])
+    with pytest.raises(InputError, match="width"):
+        quasi_harmonic_figure(qh_table, width="triple")
 
 
 def test_explorer_save_figure_button_writes_a_file(tmp_path):

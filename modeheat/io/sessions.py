@@ -12,9 +12,10 @@ Document format (schema 1)
 Every document is a JSON object with ``"kind"`` (what it holds: ``"spectrum"``,
 ``"debye"``, ``"sinechain"``, ``"einstein"``, ``"band"``, ``"electronic"``,
 ``"schottky"``, ``"dilatation"``, ``"dos"`` (a spectrum as a mixture's term), ``"mixture"``, ``"table"``, ``"fit_result"``,
-``"fit_quality"``, ``"low_temperature_fit"``), ``"schema"`` (the format version, 1)
-and the object's fields; objects inside objects (a mixture's components, a fit's model
-and tables) are documents of their own.
+``"fit_quality"``, ``"low_temperature_fit"``, ``"volume_set"`` (spectra at several
+volumes with their static energies), ``"qh"`` (a quasi-harmonic term)), ``"schema"``
+(the format version, 1) and the object's fields; objects inside objects (a mixture's
+components, a fit's model and tables, a volume set's spectra) are documents of their own.
 
 - Numbers are JSON numbers.  Python writes a float with its shortest exact
   representation, so a round trip gives the same float bit for bit.  JSON has no NaN
@@ -61,6 +62,7 @@ from .tables import write_text_file
 from ..errors import InputError, ModeheatError
 from ..fitting import FitQuality, FitResult, LowTemperatureFit
 from ..models import Band, Component, Debye, Dilatation, Einstein, Electronic, Mixture, PhononDOS, Schottky, SineChain
+from ..quasiharmonic import ENERGY_UNITS, EOS_FORMS, VOLUME_UNITS, QuasiHarmonic, VolumeSet
 from ..spectrum import LOW_T_CHOICES, Spectrum
 from ..spectrum.continuation import _check_low_t, _Continuation
 from ..thermo import CAUTION
@@ -362,6 +364,70 @@ _register_dataclass(
     PhononDOS.kind,
     PhononDOS,
     {"spectrum": _Object(Spectrum), "scale": NUMBER, "modes": NUMBER, "name": _Optional(STR)},
+)
+
+
+
+# --- spectra at several volumes, and the quasi-harmonic term ------------------------------------
+def _volume_set_out(vs: VolumeSet) -> dict:
+    return {
+        "volumes": ARRAY.encode(vs.volumes),
+        "energies": ARRAY.encode(vs.energies),
+        "spectra": None if vs.spectra is None else [to_dict(sp) for sp in vs.spectra],
+        "volume_unit": vs.volume_unit,
+        "energy_unit": vs.energy_unit,
+        "name": vs.name,
+    }
+
+
+def _volume_set_in(read: _Reader) -> VolumeSet:
+    w = read.where
+    volumes = read("volumes", ARRAY)
+    energies = read("energies", ARRAY)
+    spectra = read("spectra", _Optional(_Tuple(_Object(Spectrum))))
+    if spectra is not None and len(spectra) == energies.size != volumes.size:
+        # energies and spectra agree: the volumes are the list that lost or gained an entry
+        _fail(_at(w, "volumes"), f"expected {energies.size} numbers, one per energy and spectrum, not {volumes.size}")
+    _same_length(_at(w, "energies"), energies, volumes.size, "volumes")
+    if spectra is not None and len(spectra) != volumes.size:
+        _fail(_at(w, "spectra"), f"expected {volumes.size} spectra, one per volume, not {len(spectra)}")
+    units = {"volume_unit": _choice(read, "volume_unit", tuple(VOLUME_UNITS)),
+             "energy_unit": _choice(read, "energy_unit", tuple(ENERGY_UNITS))}
+    name = read("name", _Optional(STR))
+    try:
+        return VolumeSet(volumes, energies, spectra, name=name, **units)
+    except InputError as exc:
+        if exc.index is None:
+            _fail(w, exc.problem)
+        # A problem at a position is the volumes' (order, sign) unless the volumes alone pass: then the spectra's.
+        field = "volumes"
+        if spectra is not None:
+            try:
+                VolumeSet(volumes, energies, None, **units)
+                field = "spectra"
+            except InputError:
+                pass
+        _fail(_item(_at(w, field), exc.index), exc.problem)
+
+
+_register("volume_set", VolumeSet, _volume_set_out, _volume_set_in)
+
+
+def _quasi_harmonic_in(read: _Reader) -> QuasiHarmonic:
+    volumes = read("volumes", _Object(VolumeSet))
+    if volumes.spectra is None:
+        _fail(_at(read.where, "volumes.spectra"), "a quasi-harmonic term needs the spectra, not null")
+    eos = _choice(read, "eos", ("auto", *EOS_FORMS))
+    values = {"scale": read("scale", NUMBER), "pressure": read("pressure", NUMBER), "name": read("name", _Optional(STR))}
+    return _built(read.where, QuasiHarmonic, volumes=volumes, eos=eos, **values)
+
+
+_QH_FIELDS = {"volumes": _Object(VolumeSet), "scale": NUMBER, "pressure": NUMBER, "eos": STR, "name": _Optional(STR)}
+_register(
+    QuasiHarmonic.kind,
+    QuasiHarmonic,
+    lambda q: {name: codec.encode(getattr(q, name)) for name, codec in _QH_FIELDS.items()},
+    _quasi_harmonic_in,
 )
 
 _register_dataclass(
@@ -683,8 +749,8 @@ def to_dict(obj: object) -> dict:
 
     Parameters
     ----------
-    obj : Spectrum, Component, Mixture, pandas.DataFrame, FitResult, FitQuality or
-        LowTemperatureFit
+    obj : Spectrum, Component (a QuasiHarmonic term included), Mixture, VolumeSet,
+        pandas.DataFrame, FitResult, FitQuality or LowTemperatureFit
 
     Returns
     -------
@@ -701,7 +767,7 @@ def to_dict(obj: object) -> dict:
     if tag is None:
         raise InputError(
             f"cannot store a {type(obj).__name__} in a session; sessions hold spectra, model components, mixtures, "
-            "tables (DataFrames), fit results and low-temperature fit results"
+            "volume sets, tables (DataFrames), fit results and low-temperature fit results"
         )
     return {"kind": tag, "schema": SCHEMA, **_KINDS[tag].encode(obj)}
 

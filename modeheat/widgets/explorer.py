@@ -3,7 +3,10 @@
 Everything the Explorer shows is one frozen :class:`ExplorerState`; every edit makes a
 new state (``dataclasses.replace``), :meth:`Explorer.set_state` keeps the old one for
 undo and redraws the views.  The components are immutable, so a state costs a few
-references and undo is a list.
+references and undo is a list.  A set of spectra at several volumes (a
+:class:`~modeheat.VolumeSet`, given as ``Explorer(volumes=...)`` or uploaded in the
+quasi-harmonic panel) is part of the state too, and "add to model" there adds a
+:class:`~modeheat.QuasiHarmonic` term to the model as one more undoable edit.
 """
 
 from __future__ import annotations
@@ -25,6 +28,7 @@ from ..io.sessions import load_session, save_session, to_dict
 from ..io.tables import write_table, write_text_file
 from ..thermo import CAUTION
 from ..models import Component, Dilatation, Electronic, Mixture, PhononDOS
+from ..quasiharmonic import QuasiHarmonic, VolumeSet
 from ..representations import temperature_curves
 from ..spectrum import Spectrum
 from .curves_view import COMPONENT_VIEWS, REPRESENTATIONS, HeatCapacityView
@@ -41,6 +45,7 @@ DEFAULT_RANGE = (1.0, 1000.0)
 #: Undo keeps at most this many states.
 UNDO_DEPTH = 200
 _VIEW = "view settings"
+_VOLUMES = "volumes"
 #: The curves view's representation → the kind modeheat.figures draws it as.
 _FIGURE_KINDS = {"C": "C", "C/T³": "C/T3", "C/T vs T²": "C/T vs T2", "θ_D(T)": "theta_D", "S": "S"}
 _START = "To start: load a DOS or heat-capacity file below, or add a branch (Debye, Einstein, …) with “Add”."
@@ -66,6 +71,8 @@ class ExplorerState:
         sessions saved before stacking existed read as "overlaid"/"off"
     window : (float, float) — the fit's temperature window in K
     vary : frozenset of str — parameters the fit varies, keyed "name.field"
+    volumes : VolumeSet or None — spectra at several volumes with their static energies,
+        drawn by the quasi-harmonic panel (a session stores it as the object "volumes")
     """
 
     model: Mixture | None = None
@@ -80,6 +87,7 @@ class ExplorerState:
     show_components: str = "off"
     window: tuple = DEFAULT_RANGE
     vary: frozenset = frozenset()
+    volumes: VolumeSet | None = None
 
     def __post_init__(self):
         if self.model is not None and not isinstance(self.model, Mixture):
@@ -105,6 +113,8 @@ class ExplorerState:
         object.__setattr__(self, "show_components", shown)
         if self.atoms is not None and not 0 < self.atoms < math.inf:
             raise InputError(f"atoms per formula unit must be a positive number, not {self.atoms!r}")
+        if self.volumes is not None and (not isinstance(self.volumes, VolumeSet) or self.volumes.spectra is None):
+            raise InputError("the Explorer's volumes must be a VolumeSet with spectra")
 
     def temperatures(self) -> np.ndarray:
         """T in K of the drawn curves: the data's range (with a margin) or 1–1000 K."""
@@ -128,10 +138,11 @@ class ExplorerState:
         }
 
     def objects(self) -> dict:
-        """The objects of a session file: model, spectra, data sets and the view settings."""
+        """The objects of a session file: model, spectra, data sets, the volume set and the view settings."""
         out: dict = {} if self.model is None else {"model": self.model}
         out |= {f"spectrum {i + 1}": s for i, s in enumerate(self.spectra)}
         out |= {f"data {i + 1}": d for i, d in enumerate(self.data)}
+        out |= {} if self.volumes is None else {_VOLUMES: self.volumes}
         view = pd.DataFrame()
         view.attrs.update(self.settings())
         return out | {_VIEW: view}
@@ -151,15 +162,15 @@ class ExplorerState:
         model = objects.get("model")
         spectra = tuple(v for k, v in objects.items() if k.startswith("spectrum "))
         data = tuple(v for k, v in objects.items() if k.startswith("data "))
-        unknown = set(objects) - {_VIEW, "model"} - {k for k in objects if k.startswith(("spectrum ", "data "))}
+        unknown = set(objects) - {_VIEW, "model", _VOLUMES} - {k for k in objects if k.startswith(("spectrum ", "data "))}
         if unknown:
             raise InputError(f"not an Explorer session: unexpected objects {sorted(unknown)}")
         settings = dict(view.attrs)
-        names = {f.name for f in dataclasses.fields(cls)} - {"model", "spectra", "data"}
+        names = {f.name for f in dataclasses.fields(cls)} - {"model", "spectra", "data", "volumes"}
         if set(settings) != names:
             raise InputError(f"the view settings must name exactly {sorted(names)}")
         try:
-            return cls(model=model, spectra=spectra, data=data, **settings)
+            return cls(model=model, spectra=spectra, data=data, volumes=objects.get(_VOLUMES), **settings)
         except (TypeError, ValueError) as exc:
             raise InputError(f"the view settings are damaged: {exc}") from None
 
@@ -200,10 +211,16 @@ class Explorer(widgets.VBox):
     model : component or Mixture, optional
     data : DataFrame or list of DataFrame, optional — heat-capacity data as read by
         :func:`~modeheat.read_heat_capacity` (T in K, C and σ in J/(mol K))
-    atoms : float, optional — atoms per formula unit (default: the model's, else the first spectrum's)
+    atoms : float, optional — atoms per formula unit (default: the model's, else the first
+        spectrum's, else the volume set's)
+    volumes : VolumeSet, optional — spectra at several volumes with their static energies,
+        shown in the quasi-harmonic panel (V(T), α(T), C_p and C_v against the data), whose
+        "add to model" adds them to the model as a :class:`~modeheat.QuasiHarmonic` term;
+        a volume table and its DOS files can be uploaded there instead
     """
 
-    def __init__(self, spectrum=None, model=None, data=None, *, atoms: float | None = None):
+    def __init__(self, spectrum=None, model=None, data=None, *, atoms: float | None = None,
+                 volumes: VolumeSet | None = None):
         super().__init__()
         self.add_class("mh-explorer")
         self.status = StatusArea()
@@ -216,10 +233,12 @@ class Explorer(widgets.VBox):
             atoms = model.atoms
         if atoms is None and spectra:
             atoms = spectra[0].atoms
+        if atoms is None and isinstance(volumes, VolumeSet):
+            atoms = volumes.atoms
         mixture = _without_atoms(model)
         if mixture is None and spectra:
             mixture = Mixture((PhononDOS(spectra[0], name="dos"),))
-        state = ExplorerState(model=mixture, spectra=spectra, data=sets, atoms=atoms)
+        state = ExplorerState(model=mixture, spectra=spectra, data=sets, atoms=atoms, volumes=volumes)
         if sets:
             state = dataclasses.replace(state, window=_data_window(sets))
         self.state = state
@@ -251,7 +270,11 @@ class Explorer(widgets.VBox):
             self.status,
         ]
         self._refresh()
-        if state.model is None and not state.data:
+        if state.model is None and state.volumes is not None:
+            if not self.status.message:  # a note of the panel's (V(T) extrapolated) goes first
+                self.status.info("a volume set is loaded: see V(T), α(T) and C_p in the quasi-harmonic panel below, "
+                                 "and press “add to model” there to compare its C_p with data")
+        elif state.model is None and not state.data:
             self.status.info(_START)
 
     # --- state, undo and redo ---------------------------------------------------------------
@@ -296,6 +319,7 @@ class Explorer(widgets.VBox):
                 self.curves_view.show(s)
                 self.spectrum_view.show(s)
                 self.editor.show(s.model, s.spectra, s.atoms, s.vary)
+                self.qh_panel.show(s)
         finally:
             self._syncing = False
         self.undo_button.disabled, self.redo_button.disabled = not self._undo, not self._redo
@@ -343,11 +367,13 @@ class Explorer(widgets.VBox):
         from .data_panel import DataPanel
         from .fit_panel import FitPanel
         from .inversion_panel import InversionPanel
+        from .qh_panel import QuasiHarmonicPanel
 
         self.data_panel = DataPanel(self._on_spectrum, self._on_data, self.status)
         self.fit_panel = FitPanel(self._fit_problem, self._on_fit_result, self.status)
         self.inversion_panel = InversionPanel(self._inversion_data, self.spectrum_view.show_recovered, self.status)
-        return [self.data_panel, self.fit_panel, self.inversion_panel]
+        self.qh_panel = QuasiHarmonicPanel(self._on_volumes, self._on_add_quasi_harmonic, self.status)
+        return [self.data_panel, self.fit_panel, self.inversion_panel, self.qh_panel]
 
     def _on_spectrum(self, spectrum: Spectrum) -> None:
         """A loaded DOS: shown in the spectrum view, offered as a branch; with no model yet,
@@ -366,6 +392,27 @@ class Explorer(widgets.VBox):
         self._edit("adding heat-capacity data", data=sets, window=_data_window(sets))
         if self.status.kind != "error":
             self.status.info(f"loaded {len(frame)} heat-capacity points {frame.attrs.get('name') or ''}".rstrip())
+
+    def _on_volumes(self, volumes: VolumeSet) -> None:
+        """A volume set read from an upload: shown in the quasi-harmonic panel (an undoable edit)."""
+        atoms = self.state.atoms if self.state.atoms is not None else volumes.atoms
+        self._edit(f"loading the volume set {volumes.name or ''}".rstrip(), volumes=volumes, atoms=atoms)
+
+    def _on_add_quasi_harmonic(self, term: QuasiHarmonic) -> None:
+        """The quasi-harmonic solid as a model term (one edit: undo removes it); its C_p is
+        what the heat-capacity view then draws against the data."""
+        s = self.state
+        atoms = s.atoms if s.atoms is not None else term.volumes.atoms
+        model = Mixture((term,)) if s.model is None else s.model + term
+        self._edit(f"adding {term.name}", model=model, atoms=atoms)
+        if self.state.model is model:
+            added = model.components[-1].name
+            note = f"added {added}: C_p of the volume set at {term.pressure:g} GPa ({term.eos} equation of state)"
+            others = [c.name for c in model.components[:-1] if isinstance(c, (PhononDOS, Dilatation, QuasiHarmonic))]
+            if others:
+                note += (f"; the model also holds {', '.join(others)}: remove it if it is the same solid "
+                         "(this term already gives C_p)")
+            self.status.info(note)
 
     def _fit_problem(self) -> tuple:
         """(model, data sets, (tmin, tmax) in K, parameters to vary) for the fit panel."""
