@@ -156,7 +156,7 @@ def test_add_to_model_and_undo(vs, cp):
     p.add_button.click()
     term = e.state.model["qh"]
     assert isinstance(term, mh.QuasiHarmonic) and term.volumes is vs and term.pressure == 1.5 and term.eos == "auto"
-    assert e.state.atoms == 1 and "added qh" in e.status.message
+    assert e.state.atoms == 1 and "qh: C_p of the volume set" in e.status.message
     T = e.state.temperatures()
     # the heat-capacity view draws the term's C_p against the data; reference: the backend's
     # curves of the model, and the quasi-harmonic table's C_p itself
@@ -181,11 +181,17 @@ def test_marks_are_not_sent_again_while_a_slider_elsewhere_moves(vs):
     assert sent == ["y"]
 
 
-def test_adding_beside_a_dos_term_warns_in_words(vs):
-    e = Explorer(spectrum=vs.spectra[2], volumes=vs)
+def test_the_lattice_term_replaces_vibrational_and_dilatation_terms_and_undo_restores_them(vs):
+    model = mh.PhononDOS(vs.spectra[2], name="dos") + mh.Electronic(1e-3) + mh.Dilatation(2e-6)
+    e = Explorer(model=model, volumes=vs)
+    before = e.state
     e.qh_panel.add_button.click()
-    assert [c.name for c in e.state.model] == ["dos", "qh"]
-    assert "also holds dos" in e.status.message and e.status.kind == "info"
+    # the term carries every mode and C_p − C_v itself: the DOS and the dilatation go, γT stays
+    assert [c.name for c in e.state.model] == ["qh", "electronic"]
+    assert "in place of dos, dilatation" in e.status.message and e.status.kind == "info"
+    assert e.state.model.modes == 3 * vs.atoms  # common practice: 3 modes per atom
+    e.undo()
+    assert e.state is before
 
 
 def test_session_round_trip_with_a_quasi_harmonic_term(tmp_path, vs, cp):

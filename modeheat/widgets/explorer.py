@@ -5,8 +5,9 @@ new state (``dataclasses.replace``), :meth:`Explorer.set_state` keeps the old on
 undo and redraws the views.  The components are immutable, so a state costs a few
 references and undo is a list.  A set of spectra at several volumes (a
 :class:`~modeheat.VolumeSet`, given as ``Explorer(volumes=...)`` or uploaded in the
-quasi-harmonic panel) is part of the state too, and "add to model" there adds a
-:class:`~modeheat.QuasiHarmonic` term to the model as one more undoable edit.
+quasi-harmonic panel) is part of the state too, and "use as the lattice" there puts a
+:class:`~modeheat.QuasiHarmonic` term in the model, in place of its vibrational and
+dilatation terms, as one more undoable edit.
 """
 
 from __future__ import annotations
@@ -215,7 +216,7 @@ class Explorer(widgets.VBox):
         spectrum's, else the volume set's)
     volumes : VolumeSet, optional — spectra at several volumes with their static energies,
         shown in the quasi-harmonic panel (V(T), α(T), C_p and C_v against the data), whose
-        "add to model" adds them to the model as a :class:`~modeheat.QuasiHarmonic` term;
+        "use as the lattice" puts them in the model as a :class:`~modeheat.QuasiHarmonic` term (in place of its vibrational and dilatation terms);
         a volume table and its DOS files can be uploaded there instead
     """
 
@@ -273,7 +274,7 @@ class Explorer(widgets.VBox):
         if state.model is None and state.volumes is not None:
             if not self.status.message:  # a note of the panel's (V(T) extrapolated) goes first
                 self.status.info("a volume set is loaded: see V(T), α(T) and C_p in the quasi-harmonic panel below, "
-                                 "and press “add to model” there to compare its C_p with data")
+                                 "and press “use as the lattice” there to compare its C_p with data")
         elif state.model is None and not state.data:
             self.status.info(_START)
 
@@ -399,19 +400,23 @@ class Explorer(widgets.VBox):
         self._edit(f"loading the volume set {volumes.name or ''}".rstrip(), volumes=volumes, atoms=atoms)
 
     def _on_add_quasi_harmonic(self, term: QuasiHarmonic) -> None:
-        """The quasi-harmonic solid as a model term (one edit: undo removes it); its C_p is
-        what the heat-capacity view then draws against the data."""
+        """The quasi-harmonic solid as the model's lattice (one edit: undo puts the old model back).
+
+        The term carries all 3·atoms modes and gives C_p itself, so it takes the place of
+        every vibrational component and of a Dilatation term; electronic and two-level
+        terms stay.  Its C_p is what the heat-capacity view then draws against the data.
+        """
         s = self.state
         atoms = s.atoms if s.atoms is not None else term.volumes.atoms
-        model = Mixture((term,)) if s.model is None else s.model + term
+        kept = [] if s.model is None else [c for c in s.model.components
+                                           if c.modes == 0 and not isinstance(c, Dilatation)]
+        replaced = [] if s.model is None else [c.name for c in s.model.components if c not in kept]
+        model = Mixture((term, *kept))
         self._edit(f"adding {term.name}", model=model, atoms=atoms)
         if self.state.model is model:
-            added = model.components[-1].name
-            note = f"added {added}: C_p of the volume set at {term.pressure:g} GPa ({term.eos} equation of state)"
-            others = [c.name for c in model.components[:-1] if isinstance(c, (PhononDOS, Dilatation, QuasiHarmonic))]
-            if others:
-                note += (f"; the model also holds {', '.join(others)}: remove it if it is the same solid "
-                         "(this term already gives C_p)")
+            note = f"{model.components[0].name}: C_p of the volume set at {term.pressure:g} GPa ({term.eos} equation of state)"
+            if replaced:
+                note += f", in place of {', '.join(replaced)} (it carries every mode and C_p − C_v itself; undo puts them back)"
             self.status.info(note)
 
     def _fit_problem(self) -> tuple:

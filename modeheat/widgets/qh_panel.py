@@ -35,7 +35,7 @@ _START = "load a volume table together with its DOS files (several files at once
 
 
 class QuasiHarmonicPanel(widgets.VBox):
-    """Spectra at several volumes: V(T), α_V(T) or C_p and C_v with the data, and "add to model".
+    """Spectra at several volumes: V(T), α_V(T) or C_p and C_v with the data, and "use as the lattice".
 
     The panel draws what the Explorer's state holds (:meth:`show`): its volume set
     (``state.volumes``), its data sets and its temperatures.  Each line is a column of
@@ -54,7 +54,7 @@ class QuasiHarmonicPanel(widgets.VBox):
     Parameters
     ----------
     on_volumes : callable — receives each :class:`~modeheat.VolumeSet` read from an upload
-    on_add : callable — receives the :class:`~modeheat.QuasiHarmonic` term "add to model" makes
+    on_add : callable — receives the :class:`~modeheat.QuasiHarmonic` term "use as the lattice" makes
     status : StatusArea — where problems and notes are shown
 
     Attributes
@@ -63,7 +63,7 @@ class QuasiHarmonicPanel(widgets.VBox):
     pressure : FloatText — pressure in GPa (``mh-qh-pressure``)
     eos : Dropdown — "auto", "birch-murnaghan" or "vinet" (``mh-qh-eos``)
     representation : Dropdown — one of :data:`QH_REPRESENTATIONS` (``mh-qh-representation``)
-    add_button : Button — "add to model" (``mh-qh-add``), enabled while a set is shown
+    add_button : Button — "use as the lattice" (``mh-qh-add``), enabled while a set is shown
     figure : bqplot.Figure — ``mh-qh-figure``; its first mark, :attr:`lines`, holds the
         table's columns of the representation as rows
     summary : HTML — the set, the equation of state and its misfit (``mh-qh-summary``)
@@ -88,8 +88,10 @@ class QuasiHarmonicPanel(widgets.VBox):
         self.representation = widgets.Dropdown(options=list(QH_REPRESENTATIONS), value="V(T)", description="show",
                                                layout=widgets.Layout(width="200px"))
         self.representation.add_class("mh-qh-representation")
-        self.add_button = widgets.Button(description="add to model", icon="plus", disabled=True,
-                                         tooltip="add this solid's C_p (quasi-harmonic, at this pressure) to the model")
+        self.add_button = widgets.Button(description="use as the lattice", icon="plus", disabled=True,
+                                         tooltip="this solid's C_p (quasi-harmonic, at this pressure) in place of the "
+                                                 "model's vibrational and dilatation terms (undo puts them back)",
+                                         layout=widgets.Layout(width="160px"))
         self.add_button.add_class("mh-qh-add")
         self.summary = widgets.HTML(value=_START)
         self.summary.add_class("mh-qh-summary")
@@ -136,7 +138,7 @@ class QuasiHarmonicPanel(widgets.VBox):
         self._redraw()
 
     def component(self) -> QuasiHarmonic:
-        """The term "add to model" makes: the shown set at the panel's pressure and equation of state.
+        """The term "use as the lattice" makes: the shown set at the panel's pressure and equation of state.
 
         Raises
         ------
