@@ -71,7 +71,19 @@ from ..errors import InputError
 from ..quasiharmonic import _ENERGY_ALIASES, _VOLUME_ALIASES, ENERGY_UNITS, MIN_VOLUMES, VOLUME_UNITS, VolumeSet, _unit
 from ..spectrum import Spectrum
 from ..units import check_unit
-from .columns import _DECIMAL_COMMA, _NAME_UNIT, _NUMBER, _atoms_line, _fields, _Header, _number, _read_text, _separator, _split, _split_header
+from .columns import (
+    _DECIMAL_COMMA,
+    _NAME_UNIT,
+    _NUMBER,
+    _atoms_line,
+    _fields,
+    _Header,
+    _number,
+    _read_text,
+    _separator,
+    _split,
+    _split_header,
+)
 from .spectrum_files import read_spectrum
 from .tables import check_table_destination, write_text_file
 
@@ -233,7 +245,8 @@ def _parse_table(path) -> dict:
             value = _number(fields[k], k, _COLUMNS, path, number)
             if not math.isfinite(value):
                 raise InputError(
-                    f"field {k + 1} ({_COLUMNS.names[k]}) is {fields[k]!r}: volumes and energies must be finite numbers",
+                    f"field {k + 1} ({_COLUMNS.names[k]}) is {fields[k]!r}: "
+                    "volumes and energies must be finite numbers",
                     path=path,
                     line=number,
                 )
@@ -395,8 +408,8 @@ def _comment_lines(comments) -> list[str]:
         if not isinstance(item, str):
             raise InputError(f"comments must be strings, not {item!r}")
         for line in item.splitlines() or [""]:
-            line = line.strip()
-            if _KEY_LINE.fullmatch(line):
+            line = line.rstrip()  # leading blanks indent a continued comment
+            if _KEY_LINE.fullmatch(line.strip()):
                 raise InputError(
                     f"the comment {line!r} would read as a key line of the file; reword it (e.g. without the colon)"
                 )
