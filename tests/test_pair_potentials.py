@@ -171,7 +171,7 @@ def test_pair_lattice_refusals():
         pair_lattice(MORSE, "fcc", -4.0, 50.0)
     with pytest.raises(InputError, match="mass must be a positive number"):
         pair_lattice(MORSE, "fcc", 4.0, 0.0)
-    with pytest.raises(InputError, match="more than 2e\\+07 neighbours"):
+    with pytest.raises(InputError, match="more than 3e\\+06 neighbours"):
         pair_lattice(Morse(0.35, 0.01, 8.0), "fcc", 10.0, 50.0)
 
 

@@ -220,6 +220,7 @@ BAD_TABLES = {
     "unknown header unit": (_with(0, ROWS[0]).replace("energy,", "energy (kcal),"), 1, "header field 'energy (kcal)'"),
     "missing DOS file": (_with(3, "15.5, -3.12, nowhere.txt"), 5, "the DOS file 'nowhere.txt' does not exist"),
     "a folder for a DOS file": (_with(3, "15.5, -3.12, ."), 5, "is not a file"),
+    "a DOS file name too long": (_with(3, "15.5, -3.12, " + "x" * 300), 5, "cannot be looked up (File name too long)"),
     "fewer than 4 volumes": ("volume, energy, dos file\n" + "\n".join(ROWS[:3]) + "\n", 4,
                              "3 data rows (one volume each): a volume set needs at least 4 volumes"),
     "unsorted volumes": (_with(3, "14.8, -3.12, d4.txt"), 5, "volume 4 (14.8 A3) is below volume 3"),

@@ -160,8 +160,11 @@ def read_volume_set(
     for file, line in zip(files, lines):
         dos = Path(file)
         dos = dos if dos.is_absolute() else folder / dos
-        if not dos.is_file():
-            what = "is not a file" if dos.exists() else "does not exist"
+        try:
+            what = None if dos.is_file() else "is not a file" if dos.exists() else "does not exist"
+        except (OSError, ValueError) as exc:  # a name too long, or one the system refuses
+            what = f"cannot be looked up ({getattr(exc, 'strerror', None) or exc})"
+        if what is not None:
             raise InputError(f"the DOS file {file!r} {what} (looked for {str(dos)!r})", path=path, line=line)
         dos_paths.append(dos)
     spectra = [read_spectrum(dos, unit=unit, atoms=atoms, low_t=low_t) for dos in dos_paths]

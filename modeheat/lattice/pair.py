@@ -35,7 +35,7 @@ because each pair is shared by two atoms), to about 1e-12 of the well depth:
   distance where the exponential tail beyond it, 4πρ D e^(−a(r_c−r₀)) (r_c²/a + 2r_c/a² +
   2/a³) (ρ atoms per Å³), is below 1e-13 D; r_c is r₀ + 34/a to r₀ + 45/a for
   ordinary potentials.  A potential so long-ranged that the sphere would hold more than
-  2·10⁷ atoms is refused (the Morse a times the lattice constant below about 0.4).
+  3·10⁶ atoms is refused (the Morse a times the lattice constant below about 0.75).
 * Lennard-Jones: E = 2ε [σ¹² S₁₂ − σ⁶ S₆] with the lattice sums S_n = Σ_(R ≠ 0) |R|⁻ⁿ,
   evaluated by Ewald's splitting of |R|⁻ⁿ into a short-range real-space sum of
   Γ(n/2, η²R²)/|R|ⁿ and a rapidly converging reciprocal-lattice sum of
@@ -63,7 +63,7 @@ __all__ = ["Morse", "LennardJones", "pair_lattice"]
 
 _EV_PER_A2_IN_N_PER_M = _c.e * 1e20  # 1 eV/Å² in N/m
 _TAIL = 1e-13  # Morse: the tail beyond the cut-off, in units of the depth D
-_MAX_POINTS = 2e7  # lattice points within the Morse cut-off we are willing to sum
+_MAX_POINTS = 3e6  # lattice points within the Morse cut-off we are willing to sum (≈ 0.3 s)
 
 #: Distances of the first two neighbour shells in units of the lattice constant.
 _SHELLS = {"sc": (1.0, math.sqrt(2.0)), "bcc": (math.sqrt(3.0) / 2.0, 1.0), "fcc": (1.0 / math.sqrt(2.0), 1.0)}
@@ -114,36 +114,55 @@ class Morse:
     def energy(self, r):
         """φ(r) in eV at distances r in Å (a float for a number, else an array)."""
         x, scalar = _distances(r, "Morse")
-        with np.errstate(over="ignore"):
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # inf where φ overflows: refused below
             e = np.exp(-self.width * (x - self.r0))
-            value = self.depth * e * (e - 2.0)  # no inf − inf where e overflows
+            value = self.depth * e * (e - 2.0)
         return _finished(value, scalar, "Morse", "φ(r)")
 
     def force_constant(self, r):
         """φ''(r) in N/m at distances r in Å: 2a²D [2e^(−2a(r−r₀)) − e^(−a(r−r₀))]."""
         x, scalar = _distances(r, "Morse")
-        with np.errstate(over="ignore"):
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # inf or NaN where φ'' overflows: refused below
             e = np.exp(-self.width * (x - self.r0))
-            value = 2.0 * self.width**2 * self.depth * e * (2.0 * e - 1.0) * _EV_PER_A2_IN_N_PER_M
+            value = 2.0 * (self.width * self.width) * self.depth * e * (2.0 * e - 1.0) * _EV_PER_A2_IN_N_PER_M
         return _finished(value, scalar, "Morse", "φ''(r)")
 
     def _static_energy(self, structure: str, a: float) -> float:
         """½ Σ φ(|R|) per atom in eV (module docstring: the cut-off)."""
-        density = _BASIS[structure].shape[0] / a**3
-        w = self.width
-        rc = max(self.r0, a)
-        def tail(r: float) -> float:  # ½ Σ φ beyond r in the continuum limit, in units of D
-            return 4.0 * math.pi * density * math.exp(-w * (r - self.r0)) * (r**2 / w + 2.0 * r / w**2 + 2.0 / w**3)
+        rc = self._cutoff(structure, a)
+        try:
+            total = math.fsum(float(np.sum(self.energy(d))) for d in _neighbour_distances(structure, a, rc))
+        except OverflowError:
+            total = math.inf
+        if not math.isfinite(total):
+            raise InputError(f"Morse: the static energy overflows at a = {a:g} Å (far inside the core)")
+        return 0.5 * total
 
-        while tail(rc) > _TAIL:
-            rc += 0.5 / w
-        if 4.0 / 3.0 * math.pi * rc**3 * density > _MAX_POINTS:
+    def _cutoff(self, structure: str, a: float) -> float:
+        """The smallest r_c ≥ max(r₀, a) with the continuum tail beyond it below _TAIL·D (in logarithms,
+        so that no parameter overflows), refusing a sphere of more than _MAX_POINTS atoms."""
+        w, r0 = self.width, self.r0
+        log_density = math.log(_BASIS[structure].shape[0]) - 3.0 * math.log(a)
+        log_w = math.log(w)
+        start = max(r0, a)
+        rc = start
+        for _ in range(200):
+            log_r = math.log(rc)
+            terms = (2.0 * log_r - log_w, math.log(2.0) + log_r - 2.0 * log_w, math.log(2.0) - 3.0 * log_w)
+            peak = max(terms)
+            log_poly = peak + math.log(sum(math.exp(t - peak) for t in terms))
+            excess = math.log(4.0 * math.pi) + log_density + log_poly - math.log(_TAIL)
+            new = max(start, r0 + excess / w)
+            if abs(new - rc) <= 1e-12 * new:
+                break
+            rc = new
+        if math.log(4.0 / 3.0 * math.pi) + 3.0 * math.log(rc) + log_density > math.log(_MAX_POINTS):
             raise InputError(
                 f"Morse width {w:g}/Å is so small against the lattice constant {a:g} Å that the static energy "
                 f"would need more than {_MAX_POINTS:.0e} neighbours (cut-off {rc:.4g} Å); "
-                "use width × lattice constant ≥ about 0.4"
+                "use width × lattice constant ≥ about 0.75"
             )
-        return 0.5 * math.fsum(float(np.sum(self.energy(d))) for d in _neighbour_distances(structure, a, rc))
+        return rc
 
 
 @dataclass(frozen=True)
@@ -166,24 +185,24 @@ class LennardJones:
     def energy(self, r):
         """φ(r) in eV at distances r in Å (a float for a number, else an array)."""
         x, scalar = _distances(r, "Lennard-Jones")
-        with np.errstate(over="ignore"):
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # inf where φ overflows: refused below
             s6 = (self.sigma / x) ** 6
-            value = 4.0 * self.epsilon * (s6 * s6 - s6)
+            value = 4.0 * self.epsilon * s6 * (s6 - 1.0)
         return _finished(value, scalar, "Lennard-Jones", "φ(r)")
 
     def force_constant(self, r):
         """φ''(r) in N/m at distances r in Å: (4ε/r²) [156 (σ/r)¹² − 42 (σ/r)⁶]."""
         x, scalar = _distances(r, "Lennard-Jones")
-        with np.errstate(over="ignore"):
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # inf or NaN where φ'' overflows: refused below
             s6 = (self.sigma / x) ** 6
-            value = 4.0 * self.epsilon * (156.0 * s6 * s6 - 42.0 * s6) / x**2 * _EV_PER_A2_IN_N_PER_M
+            value = 4.0 * self.epsilon * s6 * (156.0 * s6 - 42.0) / (x * x) * _EV_PER_A2_IN_N_PER_M
         return _finished(value, scalar, "Lennard-Jones", "φ''(r)")
 
     def _static_energy(self, structure: str, a: float) -> float:
         """2ε [σ¹² S₁₂ − σ⁶ S₆] per atom in eV, the lattice sums by Ewald's splitting."""
-        s = self.sigma / a
-        with np.errstate(over="ignore"):
-            value = 2.0 * self.epsilon * (s**12 * _power_sum(structure, 12) - s**6 * _power_sum(structure, 6))
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # inf or NaN where E overflows: refused below
+            s6 = np.float64(self.sigma / a) ** 6
+            value = float(2.0 * self.epsilon * s6 * (s6 * _power_sum(structure, 12) - _power_sum(structure, 6)))
         if not math.isfinite(value):
             raise InputError(f"Lennard-Jones: the static energy overflows at a = {a:g} Å (far inside the core)")
         return value
