@@ -281,8 +281,10 @@ def test_arguments_that_contradict_the_table(tmp_path):
         read_volume_set(path, unit="meV")
     with pytest.raises(InputError, match=re.escape(f"{path}, line 2: atoms 2.0 was asked for")):
         read_volume_set(path, atoms=2)
-    with pytest.raises(InputError, match=re.escape(f"{path}: frequency unit: unknown frequency unit")):
+    with pytest.raises(InputError, match=re.escape(f"{path}: unknown frequency unit 'furlongs'")):
         read_volume_set(path, unit="furlongs")
+    with pytest.raises(InputError, match=re.escape(f"{path}: atoms must be a positive number")):
+        read_volume_set(path, atoms=-1)
 
 
 # --- writing: refusals --------------------------------------------------------------------------

@@ -67,6 +67,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .. import _checks
 from ..errors import InputError
 from ..quasiharmonic import _ENERGY_ALIASES, _VOLUME_ALIASES, ENERGY_UNITS, MIN_VOLUMES, VOLUME_UNITS, VolumeSet, _unit
 from ..spectrum import Spectrum
@@ -144,7 +145,7 @@ def read_volume_set(
     volume_unit = keys["volume unit"][0] if "volume unit" in keys else "A3"
     energy_unit = keys["energy unit"][0] if "energy unit" in keys else "eV"
     unit = _agree("frequency unit", unit, keys, path, check_unit)
-    atoms = _agree("atoms", atoms, keys, path, _atoms_argument)
+    atoms = _agree("atoms", atoms, keys, path, _checks.atoms)
     volumes, energies, files, lines = table["volumes"], table["energies"], table["files"], table["lines"]
 
     if len(lines) < MIN_VOLUMES:
@@ -181,19 +182,13 @@ def _volume_set(volumes, energies, spectra, volume_unit, energy_unit, name, path
         raise InputError(err.problem, path=path, line=line) from None
 
 
-def _atoms_argument(value) -> float:
-    from .. import _checks
-
-    return _checks.atoms(value)
-
-
 def _agree(key: str, given, keys: dict, path, check):
     """The argument or the table's key line for `key` (checked alike); they must agree."""
     if given is not None:
         try:
             given = check(given)
         except InputError as err:
-            raise InputError(f"{key}: {err.problem}", path=path) from None
+            raise InputError(err.problem, path=path) from None
     if key not in keys:
         return given
     value, line = keys[key]
