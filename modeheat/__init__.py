@@ -75,6 +75,8 @@ __all__ = [
     "quasi_harmonic",
     "moment_gruneisen",
     "fit_eos",
+    "read_volume_set",
+    "write_volume_set",
     # spring-model lattices (a subpackage); plot-ready curves for views and figures (a module)
     "lattice",
     "representations",
@@ -124,7 +126,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
     "inversion": ("InversionResult", "InversionWarning", "invert_heat_capacity"),
     "quasiharmonic": ("QuasiHarmonic", "QuasiHarmonicWarning", "VolumeSet", "fit_eos", "moment_gruneisen", "quasi_harmonic"),
     "cp_cv": ("cp_from_cv", "cv_from_cp", "nernst_lindemann_coefficient"),
-    "io": ("HeatCapacityWarning", "read_heat_capacity", "read_spectrum", "write_table"),
+    "io": ("HeatCapacityWarning", "read_heat_capacity", "read_spectrum", "read_volume_set", "write_table", "write_volume_set"),
     "fitting": (
         "DebyeBreakdown",
         "FitQuality",

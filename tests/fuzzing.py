@@ -38,6 +38,8 @@ __all__ = [
     "temperatures",
     "low_t_options",
     "heat_capacity_frames",
+    "volume_tables",
+    "volume_dos_files",
 ]
 
 
@@ -235,6 +237,49 @@ cp_files = st.one_of(
     _table(_CP_HEADERS, numbers),
     _plausible("T (K) C (J/(mol K))", _scale_free, _scale_free),
 )
+# --- volume sets ----------------------------------------------------------------------------------
+_VOLUME_KEYS = ["# volume unit: A3", "# volume unit: cm3/mol", "# volume unit: litre", "# energy unit: kJ/mol",
+                "# energy unit: Ry", "# energy unit: calorie", "# atoms: 1", "# atoms: 0", "# atoms: 2",
+                "# frequency unit: THz", "# frequency unit: Hz", "# INVENTED: a fuzz table", "# volume unit:"]
+_VOLUME_HEADERS = ["", "volume, energy, dos file", "volume (cm3/mol), energy (kJ/mol), dos file", "V () E () f",
+                   "volume [A3] energy [Ry] file", "volume (x) energy dos"]
+_VOLUME_DOS_NAMES = ["v1.txt", "v2.txt", "v3.txt", "v4.txt", "v5.txt", "fuzz_dos.txt", "missing.txt", "",
+                     ".", "../v1.txt", "v 1.txt", "x" * 300]
+
+
+@st.composite
+def volume_tables(draw) -> str:
+    """A volume-set table naming the DOS files :func:`volume_dos_files` writes (and others)."""
+    lines = [draw(st.sampled_from(_VOLUME_KEYS)) for _ in range(draw(st.integers(0, 3)))]
+    header = draw(st.sampled_from(_VOLUME_HEADERS))
+    if header:
+        lines.append(header)
+    n = draw(_mostly(st.integers(4, 6), st.integers(0, 8), 6))
+    volumes = sorted(draw(st.lists(st.floats(min_value=1.0, max_value=100.0), min_size=n, max_size=n)))
+    energies = draw(st.lists(st.floats(min_value=-10.0, max_value=10.0), min_size=n, max_size=n))
+    sep = draw(st.sampled_from([", ", ";", " ", "\t"]))
+    fmt = draw(st.sampled_from(_FORMATS))
+    for k in range(n):
+        name = draw(_mostly(st.just(f"v{k % 5 + 1}.txt"), st.sampled_from(_VOLUME_DOS_NAMES), 8))
+        v = draw(_mostly(st.just(fmt(volumes[k])), _field(), 10))
+        e = draw(_mostly(st.just(fmt(energies[k])), _field(), 10))
+        fields = [v, e, name][: draw(_mostly(st.just(3), st.integers(1, 4), 20))]
+        lines.append(sep.join(fields))
+    return "\n".join(lines) + "\n"
+
+
+def volume_dos_files(folder: Path) -> None:
+    """Five valid DOS files v1.txt … v5.txt in `folder` (invented ω² shapes), once."""
+    for k in range(1, 6):
+        path = folder / f"v{k}.txt"
+        if not path.exists():
+            f = np.linspace(0.0, 5.0 + 0.2 * k, 30)
+            g = np.where(f <= 4.5 + 0.2 * k, f**2, 0.0)
+            g = g * 3.0 / np.trapezoid(g, f)
+            path.write_text("frequency (THz), total\n" + "".join(f"{x!r}, {y!r}\n" for x, y in zip(f.tolist(), g.tolist())),
+                            encoding="utf-8")
+
+
 low_t_options = _mostly(
     st.sampled_from(["fit", "off", "extrapolate", 300.0, 1.0]), st.sampled_from([1e-300, 1e300, -5.0, "bad"]), 6
 )

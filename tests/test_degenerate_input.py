@@ -207,3 +207,27 @@ def test_density_only_at_zero_read_as_it_is():
     assert table["Cv"].iloc[1] == pytest.approx(3 * mh.units.R, rel=1e-4)
     # a density finite at ω = 0 gives C ∝ T, so no finite Debye temperature as T → 0
     assert table["theta_D"].iloc[0] == 0.0 and sp.moment_debye_temperature(-3) == 0.0
+
+
+# --- volume sets and pair potentials (found by tests/test_fuzz.py) --------------------------------
+def test_volume_set_naming_a_dos_file_too_long_for_the_system(tmp_path):
+    rows = "".join(f"{v}, -1.0, {'x' * 300}\n" for v in (1.0, 2.0, 3.0, 4.0))
+    path = tmp_path / "set.txt"
+    path.write_text(rows, encoding="utf-8")
+    with pytest.raises(InputError, match=r"set\.txt, line 1: the DOS file 'x+' cannot be looked up"):
+        mh.read_volume_set(path)
+
+
+@pytest.mark.parametrize(
+    "potential, r, calls",
+    [
+        (mh.lattice.LennardJones(1e300, 1e-320), 1e-300, ("force_constant",)),  # r² underflows: φ''/0
+        (mh.lattice.Morse(0.3, 1e300, 1e300), 1.0, ("energy", "force_constant")),  # e^(huge)·(e^(huge) − 2)
+    ],
+)
+def test_pair_potentials_overflowing_inside_the_core(potential, r, calls):
+    for name in calls:
+        with pytest.raises(InputError, match="overflows at the distances given"):
+            getattr(potential, name)(r)
+    with pytest.raises(ModeheatError):
+        mh.lattice.pair_lattice(potential, "fcc", r, 1.0)

@@ -9,13 +9,13 @@ from __future__ import annotations
 import importlib.util
 import re
 import sys
+import warnings
 from pathlib import Path
 
 import numpy as np
 import pytest
 
-from modeheat import thermo
-from modeheat import read_spectrum
+from modeheat import quasi_harmonic, read_spectrum, read_volume_set, thermo
 from modeheat.units import R
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_spectra"
@@ -26,10 +26,12 @@ DOS_FILES = {
     "quellium_dos.txt": ("THz", 1),
 }
 CP_FILES = {"zorbium_lumide_cp.txt": 2, "quellium_cp.txt": 1}
+VOLUME_TABLE = "quellium_volumes.txt"
+VOLUME_FILES = [VOLUME_TABLE, *(f"quellium_volumes_v{k}.txt" for k in range(1, 7))]
 
 
-def _script():
-    spec = importlib.util.spec_from_file_location("make_demo", DEMO / "make_demo.py")
+def _script(name: str = "make_demo"):
+    spec = importlib.util.spec_from_file_location(name, DEMO / f"{name}.py")
     module = importlib.util.module_from_spec(spec)
     sys.modules[spec.name] = module  # dataclasses look their module up there
     spec.loader.exec_module(module)
@@ -71,9 +73,9 @@ def test_committed_files_are_reproducible(tmp_path):
 
 def test_every_file_says_it_is_invented():
     # the project's rule: demo data say plainly they are invented, in every file
-    for name in [*DOS_FILES, *CP_FILES]:
-        head, _ = _read(name)
-        comments = " ".join(line for line in head if line.startswith("#"))
+    for name in [*DOS_FILES, *CP_FILES, *VOLUME_FILES]:
+        text = (DEMO / name).read_text(encoding="utf-8")
+        comments = " ".join(line for line in text.splitlines() if line.startswith("#"))
         assert "INVENTED FOR DEMONSTRATION" in comments, name
         assert "not a measurement of any real material" in comments, name
     readme = (DEMO / "README.md").read_text(encoding="utf-8")
@@ -145,3 +147,70 @@ def test_synthetic_calorimetry_follows_its_stated_model(name):
     assert abs(z.mean()) < 0.4 and 0.6 < z.std() < 1.4
     # common practice: near room temperature C_p is a few % above 3R per mole of atoms
     assert 0.9 * 3 * atoms * R < cp[-1] < 1.1 * 3 * atoms * R
+
+
+# --- the quasi-harmonic demonstration: quellium at six lattice constants --------------------------
+def _number(field: str) -> float | None:
+    try:
+        return float(field)
+    except ValueError:
+        return None
+
+
+def test_committed_volume_set_is_reproducible(tmp_path, capsys):
+    # reference: the committed files themselves; rerun demo_spectra/make_volume_demo.py if
+    # this fails.  Comment and header lines must match exactly, file names in the table
+    # too, and numbers to 2e-6 as for the other demo files (the eigen-solver's last-bit
+    # rounding may differ between machines, and these files print every digit)
+    make = _script("make_volume_demo")
+    assert make.main(["make_volume_demo.py", str(tmp_path)]) == 0
+    assert "V(T) stays inside them" in capsys.readouterr().out
+    assert sorted(p.name for p in tmp_path.iterdir()) == sorted(VOLUME_FILES)
+    for name in VOLUME_FILES:
+        committed = (DEMO / name).read_text(encoding="utf-8").splitlines()
+        fresh = (tmp_path / name).read_text(encoding="utf-8").splitlines()
+        assert len(committed) == len(fresh), name
+        for line_c, line_f in zip(committed, fresh):
+            fields_c, fields_f = line_c.split(","), line_f.split(",")
+            if line_c.startswith("#") or _number(fields_c[0]) is None:
+                assert line_c == line_f, name
+                continue
+            assert len(fields_c) == len(fields_f), name
+            for a, b in zip(fields_c, fields_f):
+                if _number(a) is None:
+                    assert a == b, name
+                else:
+                    assert float(a) == pytest.approx(float(b), rel=2e-6, abs=1e-12), name
+
+
+def test_volume_set_dos_files_count_three_modes_per_atom():
+    # common practice: a DOS per formula unit integrates to 3 modes per atom
+    vs = read_volume_set(DEMO / VOLUME_TABLE)
+    assert vs.atoms == 1.0 and vs.volume_unit == "A3" and vs.energy_unit == "eV"
+    for name in VOLUME_FILES[1:]:
+        rows = [line.split(",") for line in (DEMO / name).read_text(encoding="utf-8").splitlines()
+                if line and _number(line.split(",")[0]) is not None]
+        nu, total = np.array(rows, dtype=float).T
+        assert float(np.trapezoid(total, nu)) == pytest.approx(3.0, rel=1e-12)
+        assert nu[0] == 0.0 and np.all(np.diff(nu) > 0) and np.all(total >= 0) and total[-1] == 0.0
+    # common practice: volume per atom of an fcc lattice is a³/4
+    header = (DEMO / VOLUME_TABLE).read_text(encoding="utf-8")
+    stated = re.search(r"Lattice constants \(angstrom\): ([0-9., ]+);", header).group(1)
+    a = np.array([float(x) for x in stated.split(",")])
+    np.testing.assert_allclose(vs.volumes, a**3 / 4, rtol=1e-12)
+
+
+def test_volume_set_gives_a_quasi_harmonic_table_without_warnings():
+    # invented data: the checks say the demo is usable as designed (V(T) inside the sampled
+    # volumes up to 500 K, no warning), and physically sane — common practice for a simple
+    # solid: α_V > 0, C_p ≥ C_v, γ of order 1–3, C_v near 3R per mole of atoms at 500 K
+    vs = read_volume_set(DEMO / VOLUME_TABLE)
+    T = np.linspace(1.0, 500.0, 100)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        table = quasi_harmonic(vs, T)
+    assert len(table) == T.size and not table["extrapolated"].any() and table.attrs["extrapolated_from"] is None
+    assert (table["alpha_V"] > 0).all() and (table["Cp"] >= table["Cv"]).all()
+    assert table["gamma"].between(1.0, 3.0).all()
+    assert vs.volumes[0] < table["V"].iloc[0] < table["V"].iloc[-1] < vs.volumes[-1]
+    assert 0.95 * 3 * R < table["Cv"].iloc[-1] < 3 * R

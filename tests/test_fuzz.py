@@ -27,6 +27,8 @@ from fuzzing import (
     numbers,
     outcome,
     temperatures,
+    volume_dos_files,
+    volume_tables,
     write,
 )
 from hypothesis import given
@@ -284,3 +286,49 @@ def test_quasi_harmonic(volumes, energies, thetas, pressure, eos, T):
         return mh.quasi_harmonic(volume_set, T, pressure=pressure, eos=eos, warn=False)
 
     outcome(call)
+
+
+@examples(300)
+@given(table=volume_tables(), dos=dos_files, low_t=low_t_options)
+def test_volume_set_reader_and_writer(folder, table, dos, low_t):
+    # what reads, writes and reads back: same volumes, energies and grids
+    volume_dos_files(folder)
+    write(folder, dos, "fuzz_dos.txt")
+    path = write(folder, table, "volumes.txt")
+    (folder / "out").mkdir(exist_ok=True)
+
+    def read_write_read():
+        first = mh.read_volume_set(path, low_t=low_t)
+        mh.write_volume_set(folder / "out" / "w.txt", first, overwrite=True)
+        again = mh.read_volume_set(folder / "out" / "w.txt", low_t=low_t)
+        assert np.array_equal(again.volumes, first.volumes) and np.array_equal(again.energies, first.energies)
+        assert all(np.array_equal(a.frequency, b.frequency) for a, b in zip(first.spectra, again.spectra))
+        return again
+
+    outcome(read_write_read)
+
+
+_potential_numbers = st.one_of(numbers, st.floats(min_value=0.05, max_value=5.0))
+
+
+@examples(300)
+@given(
+    kind=st.sampled_from(["Morse", "LennardJones"]),
+    parameters=st.lists(_potential_numbers, min_size=3, max_size=3),
+    structure=st.sampled_from(["sc", "bcc", "fcc", "hcp"]),
+    a=_potential_numbers,
+    mass=st.sampled_from([1.0, 50.0, 0.0, 1e300]),
+    shells=st.sampled_from([1, 2, 3, True]),
+    r=st.lists(numbers, min_size=0, max_size=4),
+)
+def test_pair_potentials(kind, parameters, structure, a, mass, shells, r):
+    def potential():
+        return getattr(mh.lattice, kind)(*parameters[: 3 if kind == "Morse" else 2])
+
+    outcome(lambda: np.concatenate([np.atleast_1d(potential().energy(r)), np.atleast_1d(potential().force_constant(r))]))
+
+    def lattice():
+        springs, energy = mh.lattice.pair_lattice(potential(), structure, a, mass, shells)
+        return np.array([springs.k1, springs.k2, energy])
+
+    outcome(lattice)

@@ -1,4 +1,4 @@
-"""Files: reading spectra and heat capacities, writing thermodynamic tables.
+"""Files: reading spectra, heat capacities and volume sets, writing thermodynamic tables.
 
 Spectrum files
 --------------
@@ -100,9 +100,42 @@ hold what is common to all sources.  pandas reads it back as it is::
 When some text cell holds a ``#`` (a file name such as ``run#2.txt``), every field is
 written in double quotes, so that ``comment="#"`` does not cut the cell short.
 
+Volume-set files
+----------------
+:func:`read_volume_set` reads the input of the quasi-harmonic calculation
+(:func:`modeheat.quasi_harmonic`): a small table naming one spectrum file per volume,
+with the static energy at each; :func:`write_volume_set` writes one.  The table is
+UTF-8 text with the comment and blank-line rules above; a comment ``# key: value``
+with one of the keys ``volume unit`` ("A3" = Å³ per formula unit, the default;
+"cm3/mol", "m3/mol"), ``energy unit`` ("eV" per formula unit, the default; "meV",
+"Ry", "Ha", "J/mol", "kJ/mol"), ``atoms`` and ``frequency unit`` (both passed on to
+every spectrum read) sets a property of the whole set; an optional header row may
+give the volume and energy units too (``volume (cm3/mol), energy (kJ/mol), dos
+file``).  Each data row holds three fields — the volume, the static energy E₀ and the
+spectrum file's name (relative to the table's folder, or absolute) — separated as the
+first data row decides (``;``, else ``,``, else blanks); at least 4 volumes, in
+increasing order, each once::
+
+    # INVENTED: quellium at six lattice constants — not a real material
+    # volume unit: A3
+    # energy unit: eV
+    # atoms: 1
+    volume, energy, dos file
+    15.625, -3.40512, quellium_qh_v1.txt
+    16.003, -3.41987, quellium_qh_v2.txt
+    ...
+
+Every spectrum file is read by :func:`read_spectrum` and follows the rules above.
+Errors name the table and the line (a missing spectrum file, too few or unordered
+volumes, spectra for different atom counts among them); a spectrum file's own error
+names that file.  :func:`write_volume_set` writes the table and the spectrum files
+``<table stem>_v1.txt`` … beside it, numbers with ``repr`` so that they read back
+exactly, and refuses to replace any existing file unless ``overwrite=True``.  The
+details are in :mod:`~modeheat.io.volume_sets`.
+
 The modules: :mod:`~modeheat.io.columns` (the tokeniser and column parser every reader
 shares), :mod:`~modeheat.io.spectrum_files`, :mod:`~modeheat.io.heat_capacity_files`
-(with the units of C) and :mod:`~modeheat.io.tables`.
+(with the units of C), :mod:`~modeheat.io.tables` and :mod:`~modeheat.io.volume_sets`.
 """
 
 from __future__ import annotations
@@ -110,6 +143,7 @@ from __future__ import annotations
 from .heat_capacity_files import HEAT_CAPACITY_UNITS, HeatCapacityWarning, read_heat_capacity
 from .spectrum_files import read_spectrum
 from .tables import check_table_destination, write_table
+from .volume_sets import read_volume_set, write_volume_set
 
 __all__ = [
     "read_spectrum",
@@ -118,4 +152,6 @@ __all__ = [
     "HEAT_CAPACITY_UNITS",
     "write_table",
     "check_table_destination",
+    "read_volume_set",
+    "write_volume_set",
 ]

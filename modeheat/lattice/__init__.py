@@ -9,6 +9,12 @@ Models
 * :class:`RockSalt` — the two-atom rock-salt basis on the fcc lattice: a spring K1
   between unlike nearest neighbours and, optionally, springs between like next-nearest
   neighbours (one per species).
+* :func:`pair_lattice` — a :class:`CubicLattice` whose springs are the curvatures
+  φ''(r) of a pair potential (:class:`Morse`, :class:`LennardJones`) at the first two
+  neighbour distances, with the static energy per atom summed over all neighbours:
+  spectra and energies at several lattice constants for the quasi-harmonic
+  calculation.  Central springs only (the tension term φ'(r)/r dropped); see
+  :mod:`~modeheat.lattice.pair`.
 
 Units: masses in atomic mass units (u, :data:`scipy.constants.atomic_mass`), spring
 constants in N/m, lengths in Å, wave vectors in Å⁻¹ (including the 2π), frequencies
@@ -88,7 +94,8 @@ Modules
 :mod:`~modeheat.lattice.chains` (1-D chains), :mod:`~modeheat.lattice.cubic` (sc/bcc/fcc
 and rock salt: structures, dynamical matrices, elastic constants of the springs),
 :mod:`~modeheat.lattice.mesh` (q-meshes, tetrahedra, DOS, dispersions),
-:mod:`~modeheat.lattice.elastic` (sound velocities, Debye temperature); the result types
+:mod:`~modeheat.lattice.elastic` (sound velocities, Debye temperature),
+:mod:`~modeheat.lattice.pair` (pair potentials, springs and static energy from them); the result types
 and the frequency-grid integration they share are in ``_base.py``.
 """
 
@@ -100,6 +107,7 @@ from .chains import DiatomicChain, MonatomicChain
 from .cubic import CubicLattice, RockSalt
 from .elastic import debye_coefficient, debye_temperature, elastic_velocities, sound_velocities
 from .mesh import dispersion, dos, iter_dos, iter_mesh, mesh_modes, tetrahedron_dos
+from .pair import LennardJones, Morse, pair_lattice
 
 __all__ = [
     "MonatomicChain",
@@ -121,4 +129,7 @@ __all__ = [
     "elastic_velocities",
     "debye_coefficient",
     "debye_temperature",
+    "Morse",
+    "LennardJones",
+    "pair_lattice",
 ]
