@@ -140,7 +140,7 @@ _HOMES: dict[str, tuple[str, ...]] = {
 }
 _LAZY = {name: module for module, names in _HOMES.items() for name in names}
 # Submodules and subpackages reachable as attributes (``modeheat.io``); lattice, representations and progress are in __all__.
-_SUBMODULES = ("cp_cv", "engine", "errors", "fitting", "inversion", "io", "lattice", "models", "progress", "quasiharmonic", "representations", "spectrum", "units")
+_SUBMODULES = ("cp_cv", "engine", "errors", "figures", "fitting", "inversion", "io", "lattice", "models", "progress", "quasiharmonic", "representations", "spectrum", "units", "widgets")
 
 
 def _version() -> str:

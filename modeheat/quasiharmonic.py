@@ -410,7 +410,7 @@ class VolumeSet(Documented):
         for label, a in (("volume", V), ("energy", E)):
             bad = np.flatnonzero(~np.isfinite(a))
             if bad.size:
-                raise InputError(f"{label} {bad[0] + 1} is not a finite number ({a[bad[0]]!r})", index=int(bad[0]))
+                raise InputError(f"{label} {bad[0] + 1} is not a finite number ({float(a[bad[0]])})", index=int(bad[0]))
         bad = np.flatnonzero(V <= 0)
         if bad.size:
             raise InputError(f"volume {bad[0] + 1} is {V[bad[0]]:g}: volumes must be > 0", index=int(bad[0]))

@@ -289,3 +289,13 @@ def test_no_minimum_leaves_rows_out_with_a_warning_and_the_term_refuses_them():
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             mh.heat_capacity(QuasiHarmonic(vs), np.linspace(1.0, 1500.0, 31))
+
+
+def test_the_fit_report_says_the_term_gives_cp():
+    vs, _, _ = family()
+    T = np.linspace(20.0, 300.0, 30)
+    data = pd.DataFrame({"T": T, "C": quasi_harmonic(vs, T)["Cp"].to_numpy() + 1e-3 * T})
+    data.attrs["atoms"] = ATOMS
+    report = mh.fit(QuasiHarmonic(vs) + mh.Electronic(5e-4), data, vary=["qh.scale", "electronic.gamma"]).report()
+    assert "qh gives C_p itself" in report
+    assert "compared as C_v" not in report and "absorbs C_p − C_v" not in report

@@ -244,14 +244,20 @@ class FitResult(Documented):
         notes = []
         gammas = [k for k in self.varied if k.endswith(".gamma")]
         dil = [c for c in self.model.components if isinstance(c, Dilatation)]
-        if gammas:
+        gives_cp = [c.name for c in self.model.components if c.gives_cp]
+        if gammas and not gives_cp:
             notes.append(
                 "note: a free linear term γ·T fitted above ~50 K absorbs C_p − C_v, which grows roughly "
                 "linearly with T there; it is not the electronic γ unless a dilatation term is fitted "
                 "separately (a Dilatation component), and the low-temperature γ (low_temperature_fit) is the "
                 "electronic one."
             )
-        if dil:
+        if gives_cp:
+            notes.append(
+                f"note: {gives_cp[0]} gives C_p itself (quasi-harmonic: thermal expansion from its spectra at "
+                "several volumes), so C_p − C_v is in the model, not in γ."
+            )
+        elif dil:
             key = f"{dil[0].name}.A"
             how = "fitted" if key in self.varied else "held fixed"
             text = (
