@@ -21,10 +21,11 @@ EXPECTED = {
     "where_debye_breaks_down.ipynb",
     "fit_calorimetry.ipynb",
     "figures_for_paper.ipynb",
+    "quasi_harmonic_quellium.ipynb",
 }
 
 
-def test_the_four_notebooks_are_there():
+def test_the_five_notebooks_are_there():
     assert {p.name for p in NOTEBOOKS} == EXPECTED
 
 

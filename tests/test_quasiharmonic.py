@@ -79,14 +79,13 @@ def family(gamma: float = 2.0, theta0: float = 300.0, B0=0.6, Bp=4.5, volumes=VO
 def test_the_reference_forms_obey_their_own_definitions():
     # reference: mpmath differentiation — P(V0) = 0 and −V dP/dV at V0 = B0 for both forms
     for form in (bm3, vinet):
-        mpmath.mp.dps = 30
-        E = lambda v: form(mpmath.mpf(v), 0, 40, mpmath.mpf("0.6"), mpmath.mpf("4.5"))  # noqa: E731
-        assert abs(mpmath.diff(E, 40)) < 1e-20
-        assert float(40 * mpmath.diff(E, 40, 2)) == pytest.approx(0.6, rel=1e-20)
-        # B′ = dB/dP at V0 = −(V/B) dB/dV with B = V E''
-        B = lambda v: v * mpmath.diff(E, v, 2)  # noqa: E731
-        assert float(-40 / B(40) * mpmath.diff(B, 40)) == pytest.approx(4.5, rel=1e-12)
-    mpmath.mp.dps = 15
+        with mpmath.workdps(30):  # local precision: other test modules set their own
+            E = lambda v: form(mpmath.mpf(v), 0, 40, mpmath.mpf("0.6"), mpmath.mpf("4.5"))  # noqa: E731
+            assert abs(mpmath.diff(E, 40)) < 1e-20
+            assert float(40 * mpmath.diff(E, 40, 2)) == pytest.approx(0.6, rel=1e-20)
+            # B′ = dB/dP at V0 = −(V/B) dB/dV with B = V E''
+            B = lambda v: v * mpmath.diff(E, v, 2)  # noqa: E731
+            assert float(-40 / B(40) * mpmath.diff(B, 40)) == pytest.approx(4.5, rel=1e-12)
 
 
 @pytest.mark.parametrize("form, reference", [("birch-murnaghan", bm3), ("vinet", vinet)])
