@@ -28,15 +28,11 @@ import argparse
 import math
 import os
 import sys
-import warnings
-from collections.abc import Iterator, Sequence
-from concurrent.futures import ProcessPoolExecutor, as_completed
-from concurrent.futures.process import BrokenProcessPool
-from dataclasses import dataclass, field
+from collections.abc import Sequence
 from typing import TYPE_CHECKING
 
-from .errors import InputError, ModeheatError, ModeheatWarning
-from .progress import Progress, ProgressCallback, ProgressLine, drive
+from .errors import InputError, ModeheatError
+from .progress import Progress, ProgressLine
 from .units import FREQUENCY_UNITS, check_unit
 
 if TYPE_CHECKING:
@@ -246,7 +242,13 @@ def build_parser() -> argparse.ArgumentParser:
         epilog=_TABLE_EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
-    table.add_argument("files", nargs="+", metavar="FILE", help="spectrum file(s)")
+    table.add_argument("files", nargs="*", metavar="FILE", help="spectrum file(s)")
+    table.add_argument(
+        "--files-from",
+        metavar="LIST",
+        help="also the files listed in LIST, one per line ('-': standard input), for batches too long "
+        "for a command line",
+    )
     table.add_argument(
         "--unit",
         type=_unit_arg,
@@ -281,7 +283,9 @@ def build_parser() -> argparse.ArgumentParser:
         help="molar mass in g/mol of formula units, for --per gram",
     )
     table.add_argument(
-        "-o", "--output", metavar="OUT.csv", help="write the table to this CSV file instead of standard output"
+        "-o", "--output", metavar="OUT",
+        help="write the table to this CSV file instead of standard output; a name ending in .parquet or / "
+        "is a folder that receives a Parquet dataset, written chunk by chunk (needs pyarrow)",
     )
     table.add_argument(
         "--overwrite",
@@ -322,6 +326,31 @@ def build_parser() -> argparse.ArgumentParser:
         metavar="N",
         help="worker processes for several files (default: one per file, at most the CPU count)",
     )
+    table.add_argument(
+        "--engine",
+        choices=("process", "serial", "dask"),
+        default="process",
+        help="where the files are computed: a local process pool (default), this process, or Dask "
+        "(a local cluster, or --scheduler)",
+    )
+    table.add_argument(
+        "--scheduler",
+        metavar="ADDRESS",
+        help="a running Dask scheduler, e.g. tcp://10.0.0.5:8786 (implies --engine dask; needs "
+        "dask.distributed)",
+    )
+    table.add_argument(
+        "--chunk",
+        type=_positive_int,
+        default=500,
+        metavar="N",
+        help="files computed and written together (default 500): what memory holds at a time",
+    )
+    table.add_argument(
+        "--no-resume",
+        action="store_true",
+        help="refuse an existing dataset instead of adding the files it does not hold yet",
+    )
     table.set_defaults(run=_table, check=_check_table_args, usage=table)
     from .commands import add_commands
 
@@ -351,214 +380,37 @@ def version() -> str:
 def _check_table_args(args: argparse.Namespace) -> None:
     if (args.per == "gram") != (args.molar_mass is not None):
         args.usage.error("--per gram and --molar-mass go together")
-
-
-# --- the work of one file (runs in a worker process) ----------------------------------------------------
-@dataclass(frozen=True)
-class _Job:
-    path: str
-    unit: str | None
-    atoms: float | None  # None: the file's own count
-    columns: list | None
-    total: str | None
-    per: str
-    temperatures: np.ndarray
-    low_t: str | float = "auto"
-    low_t_cutoff: float | None = None
-    molar_mass: float | None = None
-
-
-@dataclass
-class _Outcome:
-    path: str
-    frame: pd.DataFrame | None = None
-    error: str | None = None  # one line that starts with the file
-    warnings: list[str] = field(default_factory=list)
-
-
-def _compute(job: _Job) -> _Outcome:
-    """The table of one file.  Never raises: every failure, a bug included, becomes the
-    outcome's error, so one file cannot cost the others their results."""
-    import numpy as np
-
-    from .io.spectrum_files import read_spectrum
-    from .thermo import thermo
-
-    outcome = _Outcome(job.path)
-    # Floating-point noise (overflow in a term that then vanishes) is not the user's
-    # business; a value it spoiled is caught by the finiteness check below instead.
-    with warnings.catch_warnings(record=True) as caught, np.errstate(all="ignore"):
-        warnings.simplefilter("always", ModeheatWarning)
-        try:
-            spectrum = read_spectrum(
-                job.path,
-                unit=job.unit,
-                atoms=job.atoms,
-                columns=job.columns,
-                total=job.total,
-                low_t=job.low_t,
-                low_t_cutoff=job.low_t_cutoff,
-            )
-            frame = thermo(spectrum, job.temperatures, per=job.per, molar_mass=job.molar_mass)
-            outcome.error = _not_finite(frame, job.path)
-            if outcome.error is None:
-                outcome.frame = frame
-        except (ModeheatError, OSError) as exc:
-            outcome.error = _located(str(exc), job.path)
-        except Exception as exc:  # a bug: reported as this file's failure
-            outcome.error = _internal(exc, job.path)
-    if outcome.frame is not None:
-        messages = [_warning_text(w, job.path) for w in caught]
-        messages.append(_missing_theta(outcome.frame, job.path))
-        outcome.warnings = [m for m in dict.fromkeys(messages) if m]
-    return outcome
-
-
-def _located(message: str, path: str) -> str:
-    """The message on one line, starting with the file it is about."""
-    text = " ".join(message.split())
-    return text if text.startswith((f"{path}:", f"{path},")) else f"{path}: {text}"
-
-
-def _internal(exc: BaseException, path: str) -> str:
-    return _located(
-        f"internal error while computing this file ({type(exc).__name__}: {exc}); "
-        "please report it with the file",
-        path,
-    )
-
-
-def _warning_text(caught: warnings.WarningMessage, path: str) -> str:
-    if issubclass(caught.category, ModeheatWarning):
-        return _located(str(caught.message), path)
-    return _located(
-        f"a library step reported {caught.category.__name__} '{caught.message}'; the table "
-        "was checked and is finite, but please report the file",
-        path,
-    )
-
-
-def _not_finite(frame: pd.DataFrame, path: str) -> str | None:
-    """Why the table must not be written, if some value is not finite.
-
-    A NaN Debye temperature is allowed: it is documented for heat capacities that
-    admit none (see :func:`_missing_theta`); ±inf there, and NaN or ±inf anywhere
-    else, are not.
-    """
-    import numpy as np
-
-    T = frame["T"].to_numpy(dtype=float)
-    problems = []
-    for column in frame.columns:
-        values = frame[column].to_numpy(dtype=float)
-        bad = ~np.isfinite(values)
-        if column == "theta_D":
-            bad &= ~np.isnan(values)
-        if bad.any():
-            first = int(np.flatnonzero(bad)[0])
-            more = int(bad.sum()) - 1
-            problems.append(
-                f"{column} is {values[first]} at T = {T[first]:g} K"
-                + (f" and at {more} other temperature(s)" if more else "")
-            )
-    if not problems:
-        return None
-    return f"{path}: not written: the table has non-finite values: " + "; ".join(problems)
-
-
-def _missing_theta(frame: pd.DataFrame, path: str) -> str | None:
-    """A warning for Debye temperatures written as nan, so that none is silent."""
-    import numpy as np
-
-    missing = np.isnan(frame["theta_D"].to_numpy(dtype=float))
-    if not missing.any():
-        return None
-    first = frame["T"].to_numpy(dtype=float)[missing][0]
-    return (
-        f"{path}: no effective Debye temperature exists at {int(missing.sum())} of {missing.size} "
-        f"temperature(s) (the first at T = {first:g} K): written as nan"
-    )
-
-
-def _compute_all(jobs: list[_Job], workers: int, progress: ProgressCallback | None) -> list[_Outcome]:
-    """Every job's outcome, in order, reporting each finished file to `progress`."""
-    return drive(_compute_steps(jobs, workers), progress)
-
-
-def _compute_steps(jobs: list[_Job], workers: int) -> Iterator[Progress]:
-    """The batch as long work (:mod:`modeheat.progress`): a record per finished file,
-    named in ``message``; the last carries every outcome, in the order of `jobs`."""
-    outcomes: list[_Outcome | None] = [None] * len(jobs)
-    done = 0
-
-    def finished(k: int, outcome: _Outcome) -> Progress:
-        nonlocal done
-        outcomes[k] = outcome
-        done += 1
-        return Progress(
-            done, len(jobs), "files", os.path.basename(outcome.path), result=outcomes if done == len(jobs) else None
-        )
-
-    if workers == 1:
-        for k, job in enumerate(jobs):
-            yield finished(k, _compute(job))
-        return
-    orphans: list[int] = []  # files in flight when a worker died
-    with ProcessPoolExecutor(max_workers=workers) as pool:
-        futures = {}
-        for k, job in enumerate(jobs):
-            try:
-                futures[pool.submit(_compute, job)] = k
-            except BrokenProcessPool:
-                orphans.append(k)
-        for future in as_completed(futures):
-            k = futures[future]
-            try:
-                outcome = future.result()
-            except BrokenProcessPool:
-                orphans.append(k)
-                continue
-            except Exception as exc:  # e.g. a result that cannot travel back
-                outcome = _Outcome(jobs[k].path, error=_internal(exc, jobs[k].path))
-            yield finished(k, outcome)
-    # A dead worker breaks the pool and every file in flight with it: compute those
-    # again one process each, so only the file that kills its worker fails.
-    for k in sorted(orphans):
-        yield finished(k, _alone(jobs[k]))
-
-
-def _alone(job: _Job) -> _Outcome:
-    with ProcessPoolExecutor(max_workers=1) as pool:
-        try:
-            return pool.submit(_compute, job).result()
-        except BrokenProcessPool:
-            return _Outcome(
-                job.path,
-                error=f"{job.path}: the worker process computing this file stopped abruptly "
-                "(killed, out of memory or crashed)",
-            )
-        except Exception as exc:
-            return _Outcome(job.path, error=_internal(exc, job.path))
+    if not args.files and args.files_from is None:
+        args.usage.error("name at least one spectrum file (or a list of them with --files-from)")
+    if args.scheduler is not None and args.engine not in ("process", "dask"):
+        args.usage.error("--scheduler goes with --engine dask")
 
 
 # --- the table command ------------------------------------------------------------------------------
 def _table(args: argparse.Namespace) -> int:
-    files: list[str] = args.files
-    if args.output is not None:
+    files = _files(args)
+    parquet = args.output is not None and _parquet_output(args.output)
+    if args.output is not None and not parquet:
         _check_output(args.output, files, args.overwrite)
-    from .io.tables import write_table
+    from .batch import TableJob, iter_outcomes
+    from .io.tables import combine_tables, write_table
     from .thermo import CAUTION
 
-    jobs = [
-        _Job(
-            path, args.unit, args.atoms, args.columns, args.total, args.per, args.temperatures,
-            args.low_t, args.low_t_cutoff, args.molar_mass,
-        )
-        for path in files
-    ]
-    workers = min(args.jobs or os.cpu_count() or 1, len(jobs))
+    options = dict(unit=args.unit, atoms=args.atoms, columns=args.columns, total=args.total, per=args.per,
+                   low_t=args.low_t, low_t_cutoff=args.low_t_cutoff, molar_mass=args.molar_mass)
+    workers = min(args.jobs or os.cpu_count() or 1, len(files))
+    engine = "dask" if args.scheduler else args.engine
     # The terminal line is modeheat.progress's, the one a fit or a lattice DOS would draw.
-    outcomes = _compute_all(jobs, workers, ProgressLine() if len(jobs) >= _PROGRESS_FROM else None)
+    line = ProgressLine() if len(files) >= _PROGRESS_FROM else None
+    if parquet:
+        return _table_dataset(args, files, options, engine, workers, line)
+    jobs = [TableJob(path, args.temperatures, **options) for path in files]
+    outcomes = []
+    for k, outcome in enumerate(iter_outcomes(jobs, engine=engine, workers=workers, scheduler=args.scheduler,
+                                              chunk=args.chunk), start=1):
+        outcomes.append(outcome)
+        if line is not None:
+            line(Progress(k, len(jobs), "files", os.path.basename(outcome.path)))
 
     good = [o for o in outcomes if o.error is None]
     for outcome in outcomes:
@@ -571,7 +423,7 @@ def _table(args: argparse.Namespace) -> int:
     if not good:
         return status
     # The shape follows the command, not the luck of the batch: several files, several sources.
-    frame = good[0].frame if len(files) == 1 else _combine(good)
+    frame = good[0].frame if len(files) == 1 else combine_tables([(o.path, o.frame) for o in good])
     if args.output is None:
         sys.stdout.write(_format(frame) + "\n")
     else:
@@ -588,6 +440,57 @@ def _table(args: argparse.Namespace) -> int:
     _say("note", _basis(frame))
     _say("caution", CAUTION)
     return status
+
+
+def _files(args: argparse.Namespace) -> list[str]:
+    """The files named on the command line, then those listed in --files-from (one per
+    line; blank lines and lines starting with '#' skipped; '-' reads standard input)."""
+    files = list(args.files)
+    if args.files_from is not None:
+        try:
+            if args.files_from == "-":
+                text = sys.stdin.read()
+            else:
+                with open(args.files_from, encoding="utf-8") as listing:
+                    text = listing.read()
+        except (OSError, UnicodeDecodeError) as exc:
+            raise InputError(f"cannot read the list of files: {exc}", path=args.files_from) from None
+        files += [line.strip() for line in text.splitlines() if line.strip() and not line.lstrip().startswith("#")]
+    if not files:
+        raise InputError("the list names no files", path=args.files_from)
+    return files
+
+
+def _parquet_output(output: str) -> bool:
+    """A Parquet dataset: a name ending in .parquet or in a slash (any other name is a CSV
+    file, so an existing folder named without the slash is refused, not filled)."""
+    return output.lower().endswith(".parquet") or output.endswith(("/", os.sep))
+
+
+def _table_dataset(args, files: list[str], options: dict, engine: str, workers: int, line) -> int:
+    """Stream the tables of `files` into a Parquet dataset (:mod:`modeheat.batch`)."""
+    from .batch import tabulate_files
+    from .thermo import CAUTION
+
+    summary = tabulate_files(files, args.temperatures, args.output, engine=engine, workers=workers,
+                             scheduler=args.scheduler, chunk=args.chunk, resume=not args.no_resume,
+                             progress=line, **options)
+    for _, message in summary.errors:
+        _say("error", message)
+    for message in summary.warnings:
+        _say("warning", message)
+    sys.stdout.write(
+        f"wrote {summary.rows} rows from {summary.written} of {_count(len(files), 'file')} to the dataset "
+        f"{args.output} ({summary.engine}, {summary.seconds:.1f} s)"
+        + (f"; {summary.skipped} already there, skipped" if summary.skipped else "")
+        + (f"; {summary.failed} failed (listed in {os.path.join(args.output, '_errors.parquet')} and above)"
+           if summary.failed else "")
+        + "\n"
+    )
+    sys.stdout.flush()
+    _say("note", "read it with pandas.read_parquet(" + repr(args.output) + "); units and basis in its _README.txt")
+    _say("caution", CAUTION)
+    return 1 if summary.failed else 0
 
 
 _ATOMS_FROM = {
@@ -630,49 +533,6 @@ def _check_output(output: str, files: list[str], overwrite: bool) -> None:
             raise InputError("the output file is one of the input files; choose another name", path=output)
     if not overwrite:
         raise InputError("the output file exists; choose another name or pass --overwrite", path=output)
-
-
-# Table-wide metadata; every other scalar in a table's attrs is per source and becomes a column.
-_TABLE_WIDE = ("units", "per", "basis", "molar_mass", "caution", "source", "atoms")
-
-
-def _combine(outcomes: list[_Outcome]) -> pd.DataFrame:
-    """One table of several sources: ``source`` and ``atoms`` first, the thermodynamic
-    columns, then one column per further per-source value (``zero_point_energy``, the
-    low-temperature method, …), repeated on every row of its source."""
-    import numpy as np
-    import pandas as pd
-
-    from .thermo import CAUTION
-
-    first = outcomes[0].frame.attrs
-    units = dict(first["units"])
-    units.setdefault("zero_point_energy", units["U"])
-    extra: list[str] = []
-    for outcome in outcomes:
-        for key, value in outcome.frame.attrs.items():
-            scalar = value is None or isinstance(value, (str, int, float, bool, np.generic))
-            if key not in _TABLE_WIDE and key not in extra and scalar:
-                extra.append(key)
-    parts = []
-    for outcome in outcomes:
-        part = outcome.frame.copy()
-        part.attrs = {}
-        part.insert(0, "source", outcome.path)
-        part.insert(1, "atoms", float(outcome.frame.attrs["atoms"]))
-        for key in extra:
-            part[key] = outcome.frame.attrs.get(key)
-        parts.append(part)
-    frame = pd.concat(parts, ignore_index=True)
-    bases = list(dict.fromkeys(outcome.frame.attrs["basis"] for outcome in outcomes))
-    frame.attrs = {
-        "units": units,
-        "per": first["per"],
-        "basis": bases[0] if len(bases) == 1 else "per source (see the atoms column): " + " | ".join(bases),
-        "molar_mass": first.get("molar_mass"),
-        "caution": CAUTION,
-    }
-    return frame
 
 
 def _format(frame: pd.DataFrame) -> str:

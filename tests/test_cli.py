@@ -20,6 +20,7 @@ import pytest
 from corpus import DATA, cases
 
 import modeheat.cli as cli
+import modeheat.batch as batch
 from modeheat.cli import main, parse_temperatures
 from modeheat import read_spectrum, write_table
 from modeheat.errors import InputError
@@ -199,12 +200,12 @@ def test_several_files_in_parallel_make_one_tidy_table(tmp_path, capsys, monkeyp
     second = _invented_second(tmp_path)
     pools = []
 
-    class RecordingPool(cli.ProcessPoolExecutor):
+    class RecordingPool(batch.ProcessPoolExecutor):
         def __init__(self, max_workers=None, **kw):
             pools.append(max_workers)
             super().__init__(max_workers=max_workers, **kw)
 
-    monkeypatch.setattr(cli, "ProcessPoolExecutor", RecordingPool)
+    monkeypatch.setattr(batch, "ProcessPoolExecutor", RecordingPool)
     out = tmp_path / "both.csv"
     args = ["table", str(GOOD), str(second), "--temperatures", "10,300", "--jobs", "2", "-o", str(out), "--atoms", "2"]
     assert main(args) == 0
@@ -291,7 +292,7 @@ def test_one_bad_file_in_a_batch_keeps_the_good_results(tmp_path, capsys):
 
 
 def _crash_or_compute(job):
-    """Stands in for cli._compute in worker processes: a worker that dies, a bug, or the real work."""
+    """Stands in for batch.compute_table in worker processes: a worker that dies, a bug, or the real work."""
     name = os.path.basename(job.path)
     if name.startswith("killer"):
         os._exit(7)
@@ -300,7 +301,7 @@ def _crash_or_compute(job):
     return _REAL_COMPUTE(job)
 
 
-_REAL_COMPUTE = cli._compute
+_REAL_COMPUTE = batch.compute_table
 
 
 def test_worker_crash_is_that_files_error(tmp_path, capsys, monkeypatch):
@@ -309,7 +310,7 @@ def test_worker_crash_is_that_files_error(tmp_path, capsys, monkeypatch):
     for path in (killer, buggy):
         path.write_text(GOOD.read_text(encoding="utf-8"), encoding="utf-8")
     repaired = DATA / "bad" / "unsorted.txt"  # a good file with a warning, which must survive
-    monkeypatch.setattr(cli, "_compute", _crash_or_compute)
+    monkeypatch.setattr(batch, "compute_table", _crash_or_compute)
     out = tmp_path / "batch.csv"
     files = [str(GOOD), str(killer), str(repaired), str(buggy)]
     assert main(["table", *files, "--jobs", "2", "--temperatures", "300", "-o", str(out), *ONE]) == 1
@@ -513,7 +514,7 @@ def _symlink(tmp_path: Path) -> Path:
 )
 @pytest.mark.parametrize("overwrite", [[], ["--overwrite"]], ids=["", "overwrite"])
 def test_output_that_is_not_a_regular_file_is_refused_before_any_work(tmp_path, capsys, monkeypatch, make, problem, overwrite):
-    monkeypatch.setattr(cli, "_compute_all", None)  # would fail if reached
+    monkeypatch.setattr(batch, "iter_outcomes", None)  # would fail if reached
     out = make(tmp_path)
     before = os.lstat(out)
     assert main(["table", str(GOOD), "-o", str(out), *overwrite, *ONE]) == 1
@@ -527,7 +528,7 @@ def test_output_that_is_not_a_regular_file_is_refused_before_any_work(tmp_path, 
 
 
 def test_missing_output_folder_is_refused_before_any_work(tmp_path, capsys, monkeypatch):
-    monkeypatch.setattr(cli, "_compute_all", None)  # would fail if reached
+    monkeypatch.setattr(batch, "iter_outcomes", None)  # would fail if reached
     out = tmp_path / "nowhere" / "t.csv"
     assert main(["table", str(GOOD), "-o", str(out), *ONE]) == 1
     assert capsys.readouterr().err.splitlines() == [

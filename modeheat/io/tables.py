@@ -14,7 +14,7 @@ import pandas as pd
 from ..errors import InputError
 from ..thermo import CAUTION, basis_text
 
-__all__ = ["write_table", "write_text_file", "check_table_destination"]
+__all__ = ["write_table", "write_text_file", "check_table_destination", "combine_tables"]
 
 
 # --- writing tables ------------------------------------------------------------------------
@@ -186,3 +186,49 @@ def _table_text(frame: pd.DataFrame) -> str:
         quoting=csv.QUOTE_NONNUMERIC if hashed else csv.QUOTE_MINIMAL,
     )
     return head + body
+
+
+# Table-wide metadata; every other scalar in a table's attrs is per source and becomes a column.
+_TABLE_WIDE = ("units", "per", "basis", "molar_mass", "caution", "source", "atoms")
+
+
+def combine_tables(tables: list[tuple[str, pd.DataFrame]]) -> pd.DataFrame:
+    """One table of several sources: ``source`` and ``atoms`` first, the thermodynamic
+    columns, then one column per further per-source value (``zero_point_energy``, the
+    low-temperature method, …), repeated on every row of its source (the "Table files"
+    format of :mod:`modeheat.io`).
+
+    Parameters
+    ----------
+    tables : list of (str, DataFrame) — each source's name and its :func:`modeheat.thermo` table
+    """
+    import numpy as np
+
+    first = tables[0][1].attrs
+    units = dict(first["units"])
+    units.setdefault("zero_point_energy", units["U"])
+    extra: list[str] = []
+    for _, frame in tables:
+        for key, value in frame.attrs.items():
+            scalar = value is None or isinstance(value, (str, int, float, bool, np.generic))
+            if key not in _TABLE_WIDE and key not in extra and scalar:
+                extra.append(key)
+    parts = []
+    for source, frame in tables:
+        part = frame.copy()
+        part.attrs = {}
+        part.insert(0, "source", source)
+        part.insert(1, "atoms", float(frame.attrs["atoms"]))
+        for key in extra:
+            part[key] = frame.attrs.get(key)
+        parts.append(part)
+    frame = pd.concat(parts, ignore_index=True)
+    bases = list(dict.fromkeys(table.attrs["basis"] for _, table in tables))
+    frame.attrs = {
+        "units": units,
+        "per": first["per"],
+        "basis": bases[0] if len(bases) == 1 else "per source (see the atoms column): " + " | ".join(bases),
+        "molar_mass": first.get("molar_mass"),
+        "caution": CAUTION,
+    }
+    return frame
