@@ -453,7 +453,7 @@ def _arrow_chunk(pa, outcomes: list[TableOutcome]):
         values = [o.frame.attrs.get(key) for o in good]
         if COLUMNS[key] == "float64":
             arr = np.repeat(np.array([np.nan if v is None else float(v) for v in values], dtype=float), counts)
-            columns[key] = pa.array(arr, pa.float64(), mask=np.repeat([v is None for v in values], counts))
+            columns[key] = pa.array(arr, pa.float64(), mask=np.repeat(np.array([v is None for v in values], dtype=bool), counts))
         else:
             columns[key] = pa.array(np.repeat(np.array([None if v is None else str(v) for v in values],
                                                        dtype=object), counts), pa.string())

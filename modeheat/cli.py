@@ -5,7 +5,9 @@ prints the thermodynamic table of each: C_v, S, U, F and the effective Debye
 temperature against T.  Each file has its own atom count (``--atoms`` sets one for
 all).  Several files make one table with ``source`` and ``atoms`` columns and the
 other per-file values (:mod:`modeheat.io`, "Table files"), computed in parallel
-worker processes.
+worker processes (or serially, or on Dask: ``--engine``) by :mod:`modeheat.batch`; with
+``-o NAME.parquet`` the rows stream into a Parquet dataset chunk by chunk, and a rerun
+skips the sources already written.
 
 A batch keeps what worked: every file that gives a table is written, and each file
 that does not gets one line ``modeheat: error: FILE…: problem`` on standard error,
