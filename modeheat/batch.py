@@ -38,12 +38,13 @@ Progress goes through :mod:`modeheat.progress` (``progress=`` callback, or the g
 
 from __future__ import annotations
 
+import itertools
 import json
 import os
 import secrets
 import time
 import warnings
-from collections.abc import Iterator, Sequence
+from collections.abc import Iterable, Iterator, Sequence
 from concurrent.futures import ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import asdict, dataclass, field
@@ -357,26 +358,28 @@ def _engine(engine: str, workers: int | None, scheduler: str | None):
     return _Dask(n, scheduler)
 
 
-def iter_outcomes(jobs: Sequence[TableJob], *, engine: str = "process", workers: int | None = None,
+def iter_outcomes(jobs: Iterable[TableJob], *, engine: str = "process", workers: int | None = None,
                   scheduler: str | None = None, chunk: int = 500) -> Iterator[TableOutcome]:
     """Each job's outcome, in the order of `jobs`, computed chunk by chunk on `engine`.
 
-    While the caller handles one chunk's outcomes the next chunk computes, so at most two
-    chunks are in memory.  The engine is started on first use and stopped when the
+    `jobs` is consumed a chunk at a time (a generator keeps memory flat), and while the
+    caller handles one chunk's outcomes the next chunk computes, so at most two chunks
+    are in memory.  The engine is started on the first job and stopped when the
     iteration ends (or is abandoned).
     """
     if not isinstance(chunk, int) or isinstance(chunk, bool) or chunk < 1:
         raise InputError(f"chunk must be a whole number of files ≥ 1, not {chunk!r}")
-    jobs = list(jobs)
-    if not jobs:
+    source = iter(jobs)
+    first = list(itertools.islice(source, chunk))
+    if not first:
         return
-    chunks = [jobs[i : i + chunk] for i in range(0, len(jobs), chunk)]
     runner = _engine(engine, workers, scheduler)
     try:
-        handle = runner.submit(chunks[0])
-        for k in range(len(chunks)):
+        handle = runner.submit(first)
+        while handle is not None:
             outcomes = runner.gather(handle)
-            handle = runner.submit(chunks[k + 1]) if k + 1 < len(chunks) else None
+            following = list(itertools.islice(source, chunk))
+            handle = runner.submit(following) if following else None
             yield from outcomes
     finally:
         runner.close()
@@ -570,6 +573,9 @@ def iter_tabulate_files(
             raise InputError("the output file exists; choose another name or pass overwrite=True", path=out)
     pending = [p for p in paths if p not in done]
     skipped = len(paths) - len(pending)
+    # Failures of an earlier run stay listed until this run tries their files again.
+    listed = read_errors(out) if parquet else None
+    earlier = dict(zip(listed["source"], listed["error"])) if parquet else {}
     errors: list[tuple[str, str]] = []
     notes: list[str] = []
     kept: list[TableOutcome] = []  # CSV only: the rows are written at the end
@@ -583,11 +589,12 @@ def iter_tabulate_files(
         if table.num_rows:
             _write_atomic(out / f"part-{run}-{part:06d}.parquet", lambda p: pa.parquet.write_table(table, p))
             part += 1
-        _write_errors(pa, out, errors)
+        _write_errors(pa, out, list(earlier.items()) + errors)
         batch.clear()
 
     jobs = (_with_path(template, p) for p in pending)
-    for o in iter_outcomes(list(jobs), engine=engine, workers=workers, scheduler=scheduler, chunk=chunk):
+    for o in iter_outcomes(jobs, engine=engine, workers=workers, scheduler=scheduler, chunk=chunk):
+        earlier.pop(o.path, None)
         if o.error is not None:
             errors.append((o.path, o.error))
         else:

@@ -192,3 +192,14 @@ def test_progress_goes_through_the_backend_mechanism(corpus, tmp_path):
     assert [s.done for s in steps[:-1]] == list(range(1, 31)) and all(s.total == 30 for s in steps)
     assert steps[-1].result is not None and steps[-1].result.written == 30
     assert os.path.basename(corpus[0]) == steps[0].message
+
+
+def test_failures_of_an_earlier_run_stay_listed_until_tried_again(corpus, tmp_path):
+    out = tmp_path / "errors.parquet"
+    files = corpus[90:110] + corpus[290:310]  # two bad files, one in each half
+    tabulate_files(files, T, out, engine="serial", chunk=5)
+    assert len(read_errors(out)) == 2
+    more = corpus[90:110] + corpus[120:140] + corpus[290:310]  # new files between the two bad ones
+    with pytest.raises(mh.Cancelled):  # a rerun stopped before it reaches the second bad file
+        tabulate_files(more, T, out, engine="serial", chunk=5, progress=lambda step: step.done < 3)
+    assert sorted(read_errors(out)["source"]) == sorted(p for p in files if Path(p).name in BAD)
