@@ -123,6 +123,7 @@ class TableOutcome:
     frame: pd.DataFrame | None = None
     error: str | None = None
     warnings: list[str] = field(default_factory=list)
+    rows: int = 0  # rows of its table (set where the frame itself stays in the worker)
 
 
 def compute_table(job: TableJob) -> TableOutcome:
@@ -217,6 +218,25 @@ def _compute_many(jobs: list[TableJob]) -> list[TableOutcome]:
     return [compute_table(job) for job in jobs]
 
 
+@dataclass
+class _Rows:
+    """A task's rows as one Arrow table, and its outcomes without their frames."""
+
+    table: Any
+    outcomes: list[TableOutcome]
+
+
+def _rows_many(jobs: list[TableJob]) -> list[_Rows]:
+    """Several files in one task, their rows made into Arrow columns in the worker: the
+    driver then only joins tables and writes them (it would otherwise take a core's share)."""
+    import pyarrow
+
+    outcomes = _compute_many(jobs)
+    table = _arrow_chunk(pyarrow, outcomes)
+    light = [TableOutcome(o.path, None, o.error, o.warnings, 0 if o.frame is None else len(o.frame)) for o in outcomes]
+    return [_Rows(table, light)]
+
+
 # --- engines ------------------------------------------------------------------------------------
 
 def _split(items: list, parts: int) -> list[list]:
@@ -228,12 +248,17 @@ def _crashed(job: TableJob, why: str) -> TableOutcome:
     return TableOutcome(job.path, error=f"{job.path}: the worker process computing this file stopped abruptly ({why})")
 
 
+# Every engine runs a task function fn(list of jobs) -> list of items (TableOutcome for
+# `_compute_many`, one _Rows for `_rows_many`) on tasks of a few dozen files; a task that
+# fails as a whole (a dead worker, a result that cannot travel back) is run again file by
+# file, each alone, and a file that still fails becomes a TableOutcome with its error.
+
 class _Serial:
     name = "serial"
     workers = 1
 
-    def submit(self, jobs):
-        return _compute_many(jobs)
+    def submit(self, jobs, fn):
+        return fn(jobs)
 
     def gather(self, handle):
         return handle
@@ -249,18 +274,18 @@ class _Pool:
         self.workers = workers
         self._pool = ProcessPoolExecutor(max_workers=workers)
 
-    def submit(self, jobs):
+    def submit(self, jobs, fn):
         tasks = _split(jobs, 4 * self.workers)
         futures = []
         for task in tasks:
             try:
-                futures.append(self._pool.submit(_compute_many, task))
+                futures.append(self._pool.submit(fn, task))
             except BrokenProcessPool:
                 futures.append(None)
-        return tasks, futures
+        return fn, tasks, futures
 
     def gather(self, handle):
-        tasks, futures = handle
+        fn, tasks, futures = handle
         out = []
         for task, future in zip(tasks, futures):
             try:
@@ -272,9 +297,11 @@ class _Pool:
                 # new pool and compute those files one process each, so only the file that
                 # kills its worker fails.
                 self._renew()
-                out.extend(self._alone(job) for job in task)
+                for job in task:
+                    out.extend(self._alone(fn, job))
             except Exception:  # noqa: BLE001 — e.g. a result that cannot travel back: file by file
-                out.extend(self._alone(job) for job in task)
+                for job in task:
+                    out.extend(self._alone(fn, job))
         return out
 
     def _renew(self):
@@ -282,14 +309,14 @@ class _Pool:
         self._pool = ProcessPoolExecutor(max_workers=self.workers)
 
     @staticmethod
-    def _alone(job: TableJob) -> TableOutcome:
+    def _alone(fn, job: TableJob) -> list:
         with ProcessPoolExecutor(max_workers=1) as pool:
             try:
-                return pool.submit(compute_table, job).result()
+                return pool.submit(fn, [job]).result()
             except BrokenProcessPool:
-                return _crashed(job, "killed, out of memory or crashed")
+                return [_crashed(job, "killed, out of memory or crashed")]
             except Exception as exc:  # noqa: BLE001
-                return TableOutcome(job.path, error=_internal(exc, job.path))
+                return [TableOutcome(job.path, error=_internal(exc, job.path))]
 
     def close(self):
         self._pool.shutdown(wait=True, cancel_futures=True)
@@ -315,29 +342,30 @@ class _Dask:
                 raise InputError(f"cannot reach the Dask scheduler at {scheduler!r}: {exc}") from None
         self.workers = max(1, len(self._client.scheduler_info().get("workers", {})) or workers)
 
-    def submit(self, jobs):
+    def submit(self, jobs, fn):
         tasks = _split(jobs, 4 * self.workers)
-        return tasks, self._client.map(_compute_many, tasks, pure=False)
+        return fn, tasks, self._client.map(fn, tasks, pure=False)
 
     def gather(self, handle):
-        tasks, futures = handle
+        fn, tasks, futures = handle
         out = []
         for task, future in zip(tasks, futures):
             try:
                 out.extend(future.result())
             except Exception:  # noqa: BLE001 — KilledWorker and the like: retry file by file
-                out.extend(self._alone(job) for job in task)
+                for job in task:
+                    out.extend(self._alone(fn, job))
         return out
 
-    def _alone(self, job: TableJob) -> TableOutcome:
+    def _alone(self, fn, job: TableJob) -> list:
         from distributed import KilledWorker
 
         try:
-            return self._client.submit(compute_table, job, pure=False).result()
+            return self._client.submit(fn, [job], pure=False).result()
         except KilledWorker:
-            return _crashed(job, "killed, out of memory or crashed")
+            return [_crashed(job, "killed, out of memory or crashed")]
         except Exception as exc:  # noqa: BLE001
-            return TableOutcome(job.path, error=_internal(exc, job.path))
+            return [TableOutcome(job.path, error=_internal(exc, job.path))]
 
     def close(self):
         self._client.close()
@@ -359,7 +387,7 @@ def _engine(engine: str, workers: int | None, scheduler: str | None):
 
 
 def iter_outcomes(jobs: Iterable[TableJob], *, engine: str = "process", workers: int | None = None,
-                  scheduler: str | None = None, chunk: int = 500) -> Iterator[TableOutcome]:
+                  scheduler: str | None = None, chunk: int = 500, _task=_compute_many) -> Iterator[TableOutcome]:
     """Each job's outcome, in the order of `jobs`, computed chunk by chunk on `engine`.
 
     `jobs` is consumed a chunk at a time (a generator keeps memory flat), and while the
@@ -375,11 +403,11 @@ def iter_outcomes(jobs: Iterable[TableJob], *, engine: str = "process", workers:
         return
     runner = _engine(engine, workers, scheduler)
     try:
-        handle = runner.submit(first)
+        handle = runner.submit(first, _task)
         while handle is not None:
             outcomes = runner.gather(handle)
             following = list(itertools.islice(source, chunk))
-            handle = runner.submit(following) if following else None
+            handle = runner.submit(following, _task) if following else None
             yield from outcomes
     finally:
         runner.close()
@@ -579,33 +607,45 @@ def iter_tabulate_files(
     errors: list[tuple[str, str]] = []
     notes: list[str] = []
     kept: list[TableOutcome] = []  # CSV only: the rows are written at the end
-    batch: list[TableOutcome] = []  # Parquet: the rows of the chunk being filled
-    written = rows = finished = part = 0
+    tables: list = []  # Parquet: the Arrow tables of the part being filled
+    filled = written = rows = finished = part = 0
     engine_name = _engine_name(engine, workers) if pending else "serial"
 
     def flush() -> None:
-        nonlocal part
-        table = _arrow_chunk(pa, batch)
-        if table.num_rows:
-            _write_atomic(out / f"part-{run}-{part:06d}.parquet", lambda p: pa.parquet.write_table(table, p))
-            part += 1
+        nonlocal part, filled
+        if tables:
+            table = pa.concat_tables(tables)
+            if table.num_rows:
+                _write_atomic(out / f"part-{run}-{part:06d}.parquet", lambda p: pa.parquet.write_table(table, p))
+                part += 1
         _write_errors(pa, out, list(earlier.items()) + errors)
-        batch.clear()
+        tables.clear()
+        filled = 0
 
     jobs = (_with_path(template, p) for p in pending)
-    for o in iter_outcomes(jobs, engine=engine, workers=workers, scheduler=scheduler, chunk=chunk):
-        earlier.pop(o.path, None)
-        if o.error is not None:
-            errors.append((o.path, o.error))
-        else:
-            notes.extend(o.warnings)
-            written += 1
-            rows += len(o.frame)
-            (batch if parquet else kept).append(o)
-        finished += 1
-        if parquet and (len(batch) >= chunk or finished == len(pending)):
+    items = iter_outcomes(jobs, engine=engine, workers=workers, scheduler=scheduler, chunk=chunk,
+                          _task=_rows_many if parquet else _compute_many)
+    for item in items:
+        if isinstance(item, _Rows):
+            tables.append(item.table)
+            group = item.outcomes
+        else:  # a file alone (a task that failed as a whole was run again file by file)
+            group = [item]
+        for o in group:
+            earlier.pop(o.path, None)
+            finished += 1
+            if o.error is not None:
+                errors.append((o.path, o.error))
+            else:
+                notes.extend(o.warnings)
+                written += 1
+                filled += 1
+                rows += o.rows if o.frame is None else len(o.frame)
+                if not parquet:
+                    kept.append(o)
+            yield Progress(finished, len(pending), "files", os.path.basename(o.path))
+        if parquet and filled >= chunk:
             flush()
-        yield Progress(finished, len(pending), "files", os.path.basename(o.path))
     if parquet:
         flush()
     elif kept:
