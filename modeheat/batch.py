@@ -337,7 +337,7 @@ class _Dask:
             self._client = Client(self._cluster)
         else:
             try:
-                self._client = Client(scheduler, timeout=30)
+                self._client = Client(scheduler, timeout="10s")  # a refused address fails after this
             except OSError as exc:
                 raise InputError(f"cannot reach the Dask scheduler at {scheduler!r}: {exc}") from None
         self.workers = max(1, len(self._client.scheduler_info().get("workers", {})) or workers)

@@ -203,3 +203,17 @@ def test_failures_of_an_earlier_run_stay_listed_until_tried_again(corpus, tmp_pa
     with pytest.raises(mh.Cancelled):  # a rerun stopped before it reaches the second bad file
         tabulate_files(more, T, out, engine="serial", chunk=5, progress=lambda step: step.done < 3)
     assert sorted(read_errors(out)["source"]) == sorted(p for p in files if Path(p).name in BAD)
+
+
+def test_an_existing_dask_scheduler_by_its_address(corpus, serial, tmp_path):
+    distributed = pytest.importorskip("distributed")
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None,
+                                  silence_logs=40) as cluster:
+        out = tmp_path / "remote.parquet"
+        summary = tabulate_files(corpus[:200], T, out, engine="dask", scheduler=cluster.scheduler_address, chunk=64)
+    assert summary.engine == "dask" and summary.written == 199
+    want = pd.read_parquet(serial[0])
+    want = want[want["source"].isin(corpus[:200])].reset_index(drop=True)
+    pd.testing.assert_frame_equal(pd.read_parquet(out), want, check_exact=True)
+    with pytest.raises(mh.InputError, match="cannot reach the Dask scheduler"):
+        tabulate_files(corpus[:2], T, tmp_path / "none.parquet", engine="dask", scheduler="tcp://127.0.0.1:9")

@@ -78,8 +78,9 @@ def test_help_loads_no_backend():
     code = (
         "import contextlib, io\nfrom modeheat.cli import main\n"
         "with contextlib.redirect_stdout(io.StringIO()):\n"
-        "    [main([c, '--help']) for c in ('lab', 'demo', 'lowt', 'figure')]\n"
-        "import sys\nprint(' '.join(m for m in ('pandas', 'scipy.optimize', 'matplotlib', 'ipywidgets') if m in sys.modules))"
+        "    [main([c, '--help']) for c in ('lab', 'demo', 'lowt', 'figure', 'quasi-harmonic')]\n"
+        "import sys\nprint(' '.join(m for m in ('pandas', 'scipy.optimize', 'matplotlib', 'ipywidgets',"
+        " 'modeheat.quasiharmonic', 'modeheat.batch', 'pyarrow', 'distributed') if m in sys.modules))"
     )
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=60)
     assert done.returncode == 0, done.stderr

@@ -9,8 +9,6 @@ them need ``modeheat.io.volume_sets`` and are skipped without it.
 
 from __future__ import annotations
 
-import subprocess
-import sys
 import warnings
 from pathlib import Path
 
@@ -69,18 +67,6 @@ def test_help_has_the_format_examples_and_exit_codes(capsys):
 def test_bad_usage_exits_2(args, capsys):
     assert main(args) == 2
     assert "usage:" in capsys.readouterr().err
-
-
-def test_help_loads_no_backend():
-    code = (
-        "import contextlib, io\nfrom modeheat.cli import main\n"
-        "with contextlib.redirect_stdout(io.StringIO()):\n    main(['quasi-harmonic', '--help'])\n"
-        "import sys\nprint(' '.join(m for m in ('pandas', 'scipy.optimize', 'matplotlib', 'modeheat.quasiharmonic')"
-        " if m in sys.modules))"
-    )
-    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=60)
-    assert done.returncode == 0, done.stderr
-    assert done.stdout.split() == []
 
 
 # --- refusals before any work (no reader needed) -------------------------------------------------------

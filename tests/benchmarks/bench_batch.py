@@ -90,6 +90,26 @@ def measured(listing: Path, out: Path, engine: str, workers: int) -> dict:
     return result | {"wall": time.perf_counter() - t0, "peak_mb": peak / 2**20, "driver_mb": driver_peak / 2**20}
 
 
+def driver_cost(listing: Path, n: int = 500) -> float:
+    """Seconds per file the driver spends on a Parquet batch with workers elsewhere: taking
+    a task's result off the wire (unpickling), joining the tables and writing the part."""
+    import pickle
+
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    from modeheat.batch import TableJob, _rows_many
+
+    files = listing.read_text(encoding="utf-8").split()[:n]
+    tasks = [files[i : i + 62] for i in range(0, len(files), 62)]  # the pool's task size at chunk 500
+    blobs = [pickle.dumps(_rows_many([TableJob(f, TEMPERATURES) for f in task])) for task in tasks]
+    with tempfile.TemporaryDirectory() as tmp:
+        t0 = time.perf_counter()
+        rows = [pickle.loads(b)[0] for b in blobs]
+        pq.write_table(pa.concat_tables([r.table for r in rows]), Path(tmp) / "part.parquet")
+        return (time.perf_counter() - t0) / len(files)
+
+
 def main(files: int = 10_000, small: int | None = None) -> dict:
     small = small or files // 4
     rows = {}
@@ -102,6 +122,7 @@ def main(files: int = 10_000, small: int | None = None) -> dict:
             workers = 1 if engine == "serial" else 2
             rows[engine] = measured(big, folder / f"{engine}.parquet", engine, workers)
             rows[engine]["small"] = measured(little, folder / f"{engine}_small.parquet", engine, workers)
+        driver = driver_cost(big)
     print(f"batch: {files} invented DOS files (200 bins) x 100 temperatures -> Parquet, 2 cores  "
           "[targets: pool >= 1.7x serial; peak memory within 20 % of the run with a quarter of the files]")
     print(f"    {'engine':8s} {'files/s':>9s} {'vs serial':>9s} {'wall s':>8s} {'peak MB':>9s} "
@@ -117,17 +138,23 @@ def main(files: int = 10_000, small: int | None = None) -> dict:
     # difference between the full and the quarter run, per-engine overhead per file from
     # how far its 2-worker rate falls short of 2 × serial.
     per_file = (rows["serial"]["seconds"] - rows["serial"]["small"]["seconds"]) / (files - small)
-    print(f"    per-file cost (serial, start-up removed): {per_file * 1e3:.2f} ms")
+    print(f"    per-file cost (serial, start-up removed): {per_file * 1e3:.2f} ms; the driver's share of a "
+          f"Parquet batch (unpickle, join, write): {driver * 1e3:.3f} ms per file, a ceiling of "
+          f"{1 / driver:,.0f} files/s for one driver")
     for engine in ("process", "dask"):
         r = rows[engine]
         marginal = (r["seconds"] - r["small"]["seconds"]) / (files - small)  # s per file with 2 workers
         overhead = max(0.0, 2 * marginal - per_file)  # per file, beyond the work itself
         startup = r["small"]["seconds"] - small * marginal
         for workers in (8, 64):
-            hours = (1e6 * (per_file + overhead) / workers + startup) / 3600
-            print(f"    estimate, 10^6 files on {workers:2d} {engine} workers: {hours:5.2f} h "
-                  f"({(per_file + overhead) * 1e3:.2f} ms per file per worker, start-up {startup:.1f} s; "
-                  "assumes the files are read as fast as here and the driver keeps up)")
+            compute = 1e6 * (per_file + overhead) / workers
+            bound = "the workers" if compute >= 1e6 * driver else "the driver"
+            hours = (max(compute, 1e6 * driver) + startup) / 3600
+            print(f"    estimate, 10^6 files on {workers:2d} {engine} workers: {hours:5.2f} h, bound by {bound} "
+                  f"({(per_file + overhead) * 1e3:.2f} ms per file per worker, start-up {startup:.1f} s; the "
+                  "files read as fast as from a local disk here)")
+    print("    (a local process pool has only this machine's cores; 8 or 64 workers means Dask workers on "
+          "other machines, or --chunk larger to keep one driver fed)")
     return rows
 
 
