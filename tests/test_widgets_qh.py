@@ -281,3 +281,17 @@ def test_bad_upload_names_the_uploaded_file(tmp_path, reader):
     assert e.qh_panel.load_files(_upload_files(tmp_path / "few", volumes=np.linspace(15.0, 16.0, 3), stem="few")) is None
     assert e.status.kind == "error" and "few.txt" in e.status.message and "at least 4 volumes" in e.status.message
     assert str(tmp_path) not in e.status.message and e.state is before
+
+
+def test_the_fit_panel_fits_the_quasi_harmonic_scale_to_the_data(vs):
+    # invented "measured" C_p: the set's own quasi-harmonic C_p with every frequency 3 % higher
+    T = np.linspace(5.0, 300.0, 40)
+    data = mh.quasi_harmonic(vs, T, scale=1.03)[["T", "Cp"]].rename(columns={"Cp": "C"})
+    data.attrs["atoms"] = vs.atoms
+    e = Explorer(volumes=vs, data=data)
+    e.qh_panel.add_button.click()
+    e.editor.vary["qh.scale"].value = True
+    result = e.fit_panel.run(wait=True)
+    assert result is not None and result.params["qh.scale"] == pytest.approx(1.03, rel=1e-6)
+    assert e.editor.sliders["qh.scale"].value == pytest.approx(1.03, rel=1e-6)  # the slider moved to it
+    assert "qh gives C_p itself" in result.report()
