@@ -302,8 +302,13 @@ def demo_outputs(out: str | os.PathLike) -> list[Path]:
     for stem, *_ in DEMO_COMPOUNDS:
         paths.append(out / f"{stem}_table.csv")
         paths += _figure_paths(out / f"{stem}_figure")
+    paths.append(out / f"{_DEMO_VOLUMES}_table.csv")
+    paths += _figure_paths(out / f"{_DEMO_VOLUMES}_figure")
     paths.append(out / "summary.txt")
     return paths
+
+
+_DEMO_VOLUMES = "quellium_quasi_harmonic"  # the invented volume set's outputs
 
 
 def _demo_steps(out: Path, overwrite: bool) -> Iterator[Progress]:
@@ -317,7 +322,7 @@ def _demo_steps(out: Path, overwrite: bool) -> Iterator[Progress]:
 
     figures = _figures()
     temperatures = parse_temperatures(_DEMO_TEMPERATURES)
-    total = 4 * len(DEMO_COMPOUNDS) + 1
+    total = 4 * len(DEMO_COMPOUNDS) + 2
     done = 0
     written: list[Path] = []
     summary = [
@@ -364,6 +369,29 @@ def _demo_steps(out: Path, overwrite: bool) -> Iterator[Progress]:
             _strip_caution(result.report()),
             "",
         ]
+    # Quellium at six volumes (invented): quasi-harmonic V(T), α, C_p against the same C_p data.
+    from .io.volume_sets import read_volume_set
+    from .quasiharmonic import quasi_harmonic
+
+    with resources.as_file(_demo_file("quellium_volumes.txt")) as p:
+        volume_set = read_volume_set(p)
+    with resources.as_file(_demo_file("quellium_cp.txt")) as p:
+        cp = read_heat_capacity(p, atoms=1)
+    q = quasi_harmonic(volume_set, temperatures)
+    q.attrs["per"] = "formula"  # write_table's basis: per mole of formula units (atoms)
+    written.append(write_table(q, out / f"{_DEMO_VOLUMES}_table.csv", overwrite=overwrite))
+    written += figures.save_figure(figures.quasi_harmonic_figure(q, cp), out / f"{_DEMO_VOLUMES}_figure",
+                                   overwrite=overwrite)
+    done += 1
+    yield Progress(done, total, "demo", "quellium: quasi-harmonic")
+    at = q.set_index("T").loc[300.0] if 300.0 in set(q["T"]) else q.iloc[-1]
+    summary += [
+        "== quellium at six volumes (invented Morse springs; the volume set of demo_spectra/make_volume_demo.py) ==",
+        f"quasi-harmonic at 0 GPa, {q.attrs['eos']} equation of state: at 300 K V = {at['V']:.5g} Å³, "
+        f"α_V = {at['alpha_V']:.4g} 1/K, B_T = {at['B_T']:.4g} GPa, C_p − C_v = {at['Cp'] - at['Cv']:.4g} J/(mol K), "
+        f"γ = {at['gamma']:.4g}",
+        "",
+    ]
     summary.append("files: " + ", ".join(p.name for p in written))
     written.append(write_text_file(out / "summary.txt", "\n".join(summary) + "\n", overwrite=overwrite))
     yield Progress(total, total, "demo", "summary", result=written)

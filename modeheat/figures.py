@@ -486,6 +486,7 @@ def quasi_harmonic_figure(table, data=None, *, width="double") -> Figure:
         v_ax.set_ylabel(_VOLUME_LABELS.get(table.attrs.get("volume_unit"), r"$V$"))
         a_ax.plot(T, table["alpha_V"].to_numpy(dtype=float), color=_colour(0), label=r"$\alpha_V$", gid="alpha_V")
         a_ax.set_ylabel(r"$\alpha_V$ (K$^{-1}$)")
+        a_ax.ticklabel_format(axis="y", style="sci", scilimits=(-3, 4), useMathText=True)  # 1×10⁻⁴, not 0.000100
         c_ax.plot(T, table["Cp"].to_numpy(dtype=float), color=_colour(0), label=r"$C_p$", gid="Cp", zorder=3)
         c_ax.plot(T, table["Cv"].to_numpy(dtype=float), color=_colour(1), linestyle="--", label=r"$C_V$", gid="Cv",
                   zorder=3)

@@ -264,7 +264,9 @@ def test_demo_outputs_names():
     names = [p.name for p in commands.demo_outputs("x")]
     assert names[:4] == ["zorbium_lumide_table.csv", "zorbium_lumide_figure.pdf",
                          "zorbium_lumide_figure.svg", "zorbium_lumide_figure.png"]
-    assert names[-1] == "summary.txt" and len(names) == 9
+    assert names[-5:-1] == ["quellium_quasi_harmonic_table.csv", "quellium_quasi_harmonic_figure.pdf",
+                            "quellium_quasi_harmonic_figure.svg", "quellium_quasi_harmonic_figure.png"]
+    assert names[-1] == "summary.txt" and len(names) == 13
 
 
 def test_demo_data_shipped_are_the_demo_files():
@@ -295,6 +297,12 @@ def test_demo_writes_tables_figures_and_summary(tmp_path, capsys):
     assert list(table.columns[:2]) == ["T", "Cv"]
     # Dulong–Petit: C_v → 3R per atom at high T (common practice); 400 K ≈ 1.3 θ_D of quellium.
     assert table["Cv"].iloc[-1] == pytest.approx(3 * sc.R, rel=0.03)  # 3 %: 400 K is not yet the limit
+    q = pd.read_csv(out / "quellium_quasi_harmonic_table.csv", comment="#")
+    # C_p − C_v = α² B_T V T (common practice), read back from the written columns
+    V = q["V"] * 1e-30 * sc.N_A
+    np.testing.assert_allclose(q["Cp"] - q["Cv"], q["alpha_V"] ** 2 * q["B_T"] * 1e9 * V * q["T"], rtol=1e-6, atol=1e-9)  # 12 digits written
+    assert "six volumes" in summary and "quasi-harmonic at 0 GPa" in summary
+    assert "Verify against measurements" in (out / "quellium_quasi_harmonic_table.csv").read_text()
     assert (out / "zorbium_lumide_figure.pdf").read_bytes()[:4] == b"%PDF"
     assert (out / "zorbium_lumide_figure.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     assert main(["demo", "--out", str(out)]) == 1  # never overwrites without --overwrite
