@@ -167,7 +167,7 @@ _TABLE_DESCRIPTION = """\
 Read spectrum files and print, at each temperature, C_v and S in J/(mol K),
 U and F in J/mol (zero-point energy included) and the effective Debye
 temperature theta_D in K.  Several files make one table, computed in
-parallel, whose first columns 'source' and 'atoms' hold each file as it was
+parallel (or on Dask), whose first columns 'source' and 'atoms' hold each file as it was
 named and its atoms per formula unit, and whose last columns hold each file's
 zero-point energy and other per-file values.  Files that fail do not stop the
 others: their results are written and each failure is reported."""
@@ -199,6 +199,16 @@ output:
   -o refuses a folder, a device, a FIFO or a link, and never replaces an input
   file; --overwrite replaces only an existing regular file.
 
+databases of files:
+  -o NAME.parquet (or a name ending in /) writes a Parquet dataset folder
+  instead, chunk by chunk (--chunk files at a time, so memory stays flat):
+  one row per file and temperature, failures in NAME.parquet/_errors.parquet.
+  Running the same command again adds only the files not yet written (and
+  tries the failed ones again); other temperatures or options are refused.
+  --files-from LIST reads the file names from LIST, one per line.  --engine
+  process (default), serial or dask; --scheduler ADDRESS uses a running Dask
+  cluster.  Needs pip install 'modeheat[batch]' (pyarrow, dask).
+
 exit status:
   0 every file gave a table; 1 some file failed (the others are still
   written) or the output could not be written; 2 bad usage.
@@ -206,7 +216,8 @@ exit status:
 examples:
   modeheat table spectrum.txt --unit THz --atoms 2
   modeheat table spectrum.txt --temperatures 1:300:1 -o table.csv
-  modeheat table a.txt b.txt c.txt --per atom --jobs 3 -o batch.csv"""
+  modeheat table a.txt b.txt c.txt --per atom --jobs 3 -o batch.csv
+  modeheat table --files-from all_dos.txt -o database.parquet"""
 
 
 _TOP_EPILOG = """\
