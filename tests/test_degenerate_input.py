@@ -231,3 +231,16 @@ def test_pair_potentials_overflowing_inside_the_core(potential, r, calls):
             getattr(potential, name)(r)
     with pytest.raises(ModeheatError):
         mh.lattice.pair_lattice(potential, "fcc", r, 1.0)
+
+
+def test_breakdown_exit_between_repeated_temperatures_or_an_infinite_excess():
+    # found by the fuzz campaign (scale 5): data with repeated temperatures made 0 × inf
+    import numpy as np
+
+    from modeheat.fitting.breakdown import _interpolated_exit
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", RuntimeWarning)
+        assert _interpolated_exit(np.array([0.125, 0.5, 0.5]), np.array([-1.0, -np.inf, 2.0])) == 0.5
+        assert _interpolated_exit(np.array([0.125, 0.5, 0.5]), np.array([-1.0, -0.5, 2.0])) == 0.5
+        assert _interpolated_exit(np.array([1.0, 2.0]), np.array([-1.0, 1.0])) == 1.5

@@ -326,6 +326,6 @@ def _interpolated_exit(T: np.ndarray, excess: np.ndarray) -> float:
     if k is None:
         return math.inf
     a, b = excess[k - 1], excess[k]
-    if not math.isfinite(b):
-        return float(T[k - 1])
+    if not (math.isfinite(a) and math.isfinite(b)) or T[k] == T[k - 1]:
+        return float(T[k - 1])  # nothing to interpolate between (an infinite excess, a repeated T)
     return float(T[k - 1] + (T[k] - T[k - 1]) * (-a) / (b - a))
