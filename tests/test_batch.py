@@ -97,10 +97,14 @@ def test_bad_files_are_listed_and_good_ones_kept(serial):
 
 @pytest.mark.parametrize("engine", [e for e in ENGINES if e != "serial"])
 def test_every_engine_gives_the_same_table_bit_for_bit(corpus, serial, tmp_path, engine):
-    if engine == "dask":
-        pytest.importorskip("distributed")
     out = tmp_path / f"{engine}.parquet"
-    summary = tabulate_files(corpus, T, out, engine=engine, workers=2, chunk=128)
+    if engine == "dask":  # a local Dask cluster started and stopped here, reached by its address
+        distributed = pytest.importorskip("distributed")
+        with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None,
+                                      silence_logs=40) as cluster:
+            summary = tabulate_files(corpus, T, out, engine="dask", scheduler=cluster.scheduler_address, chunk=128)
+    else:
+        summary = tabulate_files(corpus, T, out, engine=engine, workers=2, chunk=128)
     assert summary.engine == engine and (summary.written, summary.failed) == (FILES - len(BAD), len(BAD))
     pd.testing.assert_frame_equal(pd.read_parquet(out), pd.read_parquet(serial[0]), check_exact=True)
     pd.testing.assert_frame_equal(read_errors(out), read_errors(serial[0]), check_exact=True)
@@ -205,12 +209,10 @@ def test_failures_of_an_earlier_run_stay_listed_until_tried_again(corpus, tmp_pa
     assert sorted(read_errors(out)["source"]) == sorted(p for p in files if Path(p).name in BAD)
 
 
-def test_an_existing_dask_scheduler_by_its_address(corpus, serial, tmp_path):
-    distributed = pytest.importorskip("distributed")
-    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None,
-                                  silence_logs=40) as cluster:
-        out = tmp_path / "remote.parquet"
-        summary = tabulate_files(corpus[:200], T, out, engine="dask", scheduler=cluster.scheduler_address, chunk=64)
+def test_the_dask_engine_starts_its_own_local_cluster(corpus, serial, tmp_path):
+    pytest.importorskip("distributed")
+    out = tmp_path / "own.parquet"
+    summary = tabulate_files(corpus[:200], T, out, engine="dask", workers=2, chunk=64)
     assert summary.engine == "dask" and summary.written == 199
     want = pd.read_parquet(serial[0])
     want = want[want["source"].isin(corpus[:200])].reset_index(drop=True)
