@@ -278,43 +278,57 @@ def _fit_vinet(V: np.ndarray, E: np.ndarray, start: tuple) -> EOSFit:
     p = np.stack([np.log(V0), np.log(np.maximum(B0, 1e-30)), Bp], axis=1)  # (n, 3)
     n = E.shape[1]
 
-    def misfit(q):
-        shape = vinet_energy(V[:, None], 0.0, np.exp(q[:, 0]), np.exp(q[:, 1]), q[:, 2])  # (n_vol, n)
+    def misfit(q, E):
+        shape = vinet_energy(V[:, None], 0.0, np.exp(q[:, 0]), np.exp(q[:, 1]), q[:, 2])  # (n_vol, m)
         e0 = np.mean(E - shape, axis=0)
         return E - shape - e0, e0
 
-    r, e0 = misfit(p)
+    def jacobian(q):
+        """∂(misfit)/∂(ln V₀, ln B₀, B₀′), (n_vol, m, 3): the Vinet form differentiated by hand,
+        E₀ eliminated (each column minus its mean)."""
+        V0, B0, Bp = np.exp(q[:, 0]), np.exp(q[:, 1]), q[:, 2]
+        x = (V[:, None] / V0) ** (1.0 / 3.0)
+        u, eta = x - 1.0, 1.5 * (Bp - 1.0)
+        C = 2.0 * B0 * V0 / (Bp - 1.0) ** 2
+        P = 5.0 + 3.0 * Bp * u - 3.0 * x
+        Q = np.exp(-eta * u)
+        f = 2.0 - P * Q
+        d_lnV0 = C * f + C * Q * (3.0 * Bp - 3.0 - eta * P) * x / 3.0
+        d_lnB0 = C * f
+        d_Bp = -2.0 * C * f / (Bp - 1.0) - C * u * Q * (3.0 - 1.5 * P)
+        J = -np.stack([d_lnV0, d_lnB0, d_Bp], axis=-1)
+        return J - J.mean(axis=0)
+
+    r, e0 = misfit(p, E)
     cost = np.sum(r**2, axis=0)
     lam = np.full(n, 1e-3)
+    active = np.arange(n)  # the fits still moving: a converged one costs nothing more
     for _ in range(200):
-        J = np.empty((V.size, n, 3))
-        for j in range(3):
-            h = 1e-6 * np.maximum(1.0, np.abs(p[:, j]))
-            q = p.copy()
-            q[:, j] += h
-            J[:, :, j] = (misfit(q)[0] - r) / h
-        JT = np.transpose(J, (1, 2, 0))  # (n, 3, n_vol)
-        A = JT @ np.transpose(J, (1, 0, 2))  # (n, 3, 3)
-        g = JT @ np.transpose(r)[:, :, None]  # (n, 3, 1)
-        A = A + lam[:, None, None] * np.eye(3) * np.diagonal(A, axis1=1, axis2=2)[:, :, None].clip(1e-300)
+        pa, ra, Ea, la = p[active], r[:, active], E[:, active], lam[active]
+        J = jacobian(pa)
+        JT = np.transpose(J, (1, 2, 0))  # (m, 3, n_vol)
+        A = JT @ np.transpose(J, (1, 0, 2))  # (m, 3, 3)
+        g = JT @ np.transpose(ra)[:, :, None]  # (m, 3, 1)
+        A = A + la[:, None, None] * np.eye(3) * np.diagonal(A, axis1=1, axis2=2)[:, :, None].clip(1e-300)
         # a singular or non-finite system (a flat or broken misfit) takes no step at that T
         good = np.isfinite(A).all(axis=(1, 2)) & np.isfinite(g).all(axis=(1, 2))
         good[good] &= np.abs(np.linalg.det(A[good])) > 1e-300
-        step = np.zeros_like(p)
+        step = np.zeros_like(pa)
         if good.any():
             step[good] = -np.linalg.solve(A[good], g[good])[:, :, 0]
-        q = p + step
-        q[:, 2] = np.where(np.abs(q[:, 2] - 1.0) < 1e-3, p[:, 2], q[:, 2])
-        r2, e02 = misfit(q)
+        q = pa + step
+        q[:, 2] = np.where(np.abs(q[:, 2] - 1.0) < 1e-3, pa[:, 2], q[:, 2])
+        r2, e02 = misfit(q, Ea)
         cost2 = np.sum(r2**2, axis=0)
-        better = np.isfinite(cost2) & (cost2 <= cost)
-        p = np.where(better[:, None], q, p)
-        r = np.where(better[None, :], r2, r)
-        e0 = np.where(better, e02, e0)
-        small = np.max(np.abs(step), axis=1) < 1e-12
-        cost = np.where(better, cost2, cost)
-        lam = np.where(better, lam * 0.3, lam * 10.0)
-        if np.all(small | (lam > 1e12)):
+        better = np.isfinite(cost2) & (cost2 <= cost[active])
+        p[active] = np.where(better[:, None], q, pa)
+        r[:, active] = np.where(better[None, :], r2, ra)
+        e0[active] = np.where(better, e02, e0[active])
+        cost[active] = np.where(better, cost2, cost[active])
+        lam[active] = np.where(better, la * 0.3, la * 10.0)
+        done = (np.max(np.abs(step), axis=1) < 1e-10) | (lam[active] > 1e12)  # log V0, log B0, B0′
+        active = active[~done]
+        if active.size == 0:
             break
     V0, B0 = np.exp(p[:, 0]), np.exp(p[:, 1])
     valid = np.isfinite(cost) & np.isfinite(p).all(axis=1) & (V0 > V[0] / 3.0) & (V0 < 3.0 * V[-1])
