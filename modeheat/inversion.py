@@ -35,12 +35,12 @@ from scipy.optimize import nnls
 
 from .cp_cv import cv_from_cp
 from .engine.special import einstein_terms
-from .errors import InputError, ModeheatWarning
+from .errors import InputError, ModeheatWarning, NoDebyeTemperatureWarning
 from .fitting._points import _SIGMA_FLOOR, _SIGMA_RELATIVE, _points
 from .models import PhononDOS
 from .progress import Progress, ProgressCallback, drive
 from .spectrum import Spectrum
-from .thermo import atoms_of_data
+from .thermo import atoms_of_data, effective_debye_temperature
 from .units import R, kelvin_per
 
 __all__ = ["invert_heat_capacity", "iter_invert_heat_capacity", "InversionResult", "InversionWarning"]
@@ -48,7 +48,8 @@ __all__ = ["invert_heat_capacity", "iter_invert_heat_capacity", "InversionResult
 MOMENT_ORDERS: tuple[int, ...] = (-3, -2, -1, 1, 2)
 _NODES = 4  # Gauss–Legendre nodes per bin (in ln θ) for the bin-averaged kernel
 _BINS = 120  # default number of bins
-_LOW, _HIGH = 0.5, 12.0  # default grid: θ from 0.5·T_min to 12·T_max (K(12) ≈ 1e-3)
+_LOW, _HIGH = 0.5, 12.0  # default grid: θ from 0.5·T_min to 12·T_max (K(12) ≈ 1e-3) …
+_HOT = 3.0  # … or to 3 × the warm data's largest effective θ_D, where that is lower
 _ALPHAS = np.logspace(-1.5, 2.5, 17)  # relative penalty strengths scanned (below, GCV's flat minimum can pick noise)
 _SUM_WEIGHT = 1e4  # weight of the mode-count row relative to the data rows
 _SIGMA_FALLBACK = 0.01  # σ = 1 % of C when the data carry no sigma column
@@ -186,10 +187,35 @@ def _to_cv(T: np.ndarray, cp: np.ndarray, sigma: np.ndarray, cp_to_cv: Mapping) 
     return cv, sigma * slope
 
 
-def _grid_kelvin(grid, T: np.ndarray) -> np.ndarray:
-    """Bin edges in K: the given THz edges, or the default log grid from the T range."""
+def _default_top(T: np.ndarray, C: np.ndarray, atoms: float) -> float:
+    """The default grid's upper edge in K.
+
+    12·T_max bounds what the data can see; but where the warm half of the data already
+    has an effective Debye temperature θ_eff (0 < C < 3·atoms·R), no mode of the solid
+    lies far above it: modes there would leave C short of what was measured.  Above a
+    sharp cut-off the smoothing would otherwise spread modes up to 12·T_max (a lattice
+    DOS came back with θ(2) up to 17 % high; 3·θ_eff keeps it within 3 %).  3·θ_eff is
+    wide enough for an optical branch several times the acoustic one, whose deficit in
+    C raises θ_eff itself.
+    """
+    top = _HIGH * T.max()
+    warm = T >= np.median(T)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", NoDebyeTemperatureWarning)  # none where C ≥ 3·atoms·R: skipped
+        try:
+            theta = effective_debye_temperature(T[warm], C[warm], atoms=atoms)
+        except InputError:  # e.g. a C ≤ 0 left after a fixed γT was removed: keep 12·T_max
+            return max(top, 8.0 * _LOW * T.min())
+    theta = theta[np.isfinite(theta) & (theta > 0)]
+    if theta.size:
+        top = min(top, _HOT * float(theta.max()))
+    return max(top, 8.0 * _LOW * T.min())  # never a grid narrower than a few bins of the data's range
+
+
+def _grid_kelvin(grid, T: np.ndarray, top: float) -> np.ndarray:
+    """Bin edges in K: the given THz edges, or the default log grid up to `top` (K)."""
     if grid is None:
-        return np.geomspace(_LOW * T.min(), _HIGH * T.max(), _BINS + 1)
+        return np.geomspace(_LOW * T.min(), top, _BINS + 1)
     try:
         e = np.asarray(grid, dtype=float)
     except (TypeError, ValueError):
@@ -341,10 +367,10 @@ def iter_invert_heat_capacity(
     _check_options(method, electronic, band, samples, seed)
     atoms, _ = atoms_of_data(data, atoms)
     T, C, sigma = _measured(data, cp_to_cv)
-    edges = _grid_kelvin(grid, T)
     modes = 3.0 * atoms
     fit_gamma = electronic == "fit"
     target = C - (float(electronic) * T if isinstance(electronic, numbers.Real) else 0.0)
+    edges = _grid_kelvin(grid, T, _default_top(T, target, atoms) if grid is None else math.nan)
     total = 2 + (samples if band == "resample" else 0)
     yield Progress(0, total, "kernel", f"{T.size} points, {edges.size - 1} bins")
 
@@ -449,7 +475,8 @@ def invert_heat_capacity(
         :class:`InversionWarning`)
     atoms : float, optional — atoms per formula unit (:func:`~modeheat.thermo.atoms_of_data`)
     grid : array_like, optional — bin edges in THz (default: 120 log-spaced bins from
-        0.5·k·T_min/h to 12·k·T_max/h)
+        0.5·k·T_min/h to 12·k·T_max/h, or to 3·k·θ_eff/h where that is lower, θ_eff the
+        largest effective Debye temperature of the warmer half of the data)
     method : {"gcv", "lcurve"} — how the strength is chosen: generalised
         cross-validation or the L-curve corner
     prior : Spectrum, component or Mixture, optional — regularise towards its binned

@@ -230,9 +230,10 @@ def test_cp_to_cv_bad_conversion(conversion, match):
 # in test_lattice.py — the reference here); its C(T) is summed in this file from that DOS
 # with the closed-form Einstein kernel, not by modeheat's thermodynamics.
 T_LATTICE = np.geomspace(3.0, 300.0, 150)
-# The bin edges stop at 12 THz (576 K, about 1.7× the model's 7 THz cut-off): with the default
-# grid (to 12·T_max = 3600 K) a sharp cut-off lets GCV spread modes far above it, and θ(2) came
-# out 2–17 % high over the seeds; with this grid θ(−2) and θ(2) were within 2.3 % for seeds 0–4.
+# The bin edges stop at 12 THz (576 K, about 1.7× the model's 7 THz cut-off).  A grid up to
+# 12·T_max = 3600 K let GCV spread modes far above the sharp cut-off (θ(2) came out 2–17 % high
+# over the seeds); the default grid now stops at 3·θ_eff of the warm data (≈ 975 K here), and
+# the test runs both.
 LATTICE_GRID = np.geomspace(0.03, 12.0, 121)
 K_PER_THZ = scipy.constants.h * 1e12 / scipy.constants.k  # scipy.constants (CODATA)
 
@@ -255,12 +256,13 @@ def _lattice_cv(spectrum) -> np.ndarray:
     return R * np.trapezoid(g[None, :] * kernel, nu, axis=1)
 
 
+@pytest.mark.parametrize("grid", [LATTICE_GRID, None], ids=["12 THz", "default"])
 @pytest.mark.parametrize("seed", SEEDS)
-def test_lattice_round_trip(lattice_dos, seed):
+def test_lattice_round_trip(lattice_dos, seed, grid):
     C0 = _lattice_cv(lattice_dos)
     s = 0.005 * C0
     data = pd.DataFrame({"T": T_LATTICE, "C": C0 + s * np.random.default_rng(seed).standard_normal(C0.size), "sigma": s})
-    r = invert_heat_capacity(data, atoms=1.0, grid=LATTICE_GRID, band="none", electronic="none")
+    r = invert_heat_capacity(data, atoms=1.0, grid=grid, band="none", electronic="none")
     # χ²_red of the regularised fit at 150 points: the spread of χ²/ν is ±0.12 (0.81–1.15
     # measured over the seeds); the band
     # 0.6–1.4 allows a GCV-chosen smoother's bias, as for the Debye + Einstein truth
@@ -280,3 +282,22 @@ def test_uncertainties_too_small_to_weight_are_refused():
         warnings.simplefilter("ignore", InversionWarning)  # no sigma column: the documented fallback
         with pytest.raises(InputError, match="uncertainty .* below"):
             invert_heat_capacity(frame, atoms=1, band="none")
+
+
+@pytest.mark.parametrize("low, high, tmax", [(150.0, 1200.0, 300.0), (300.0, 900.0, 300.0), (300.0, 900.0, 100.0),
+                                              (200.0, 2500.0, 300.0)])
+def test_default_grid_reaches_above_a_high_optical_mode(low, high, tmax):
+    """The default upper edge (3·θ_eff of the warm data, at most 12·T_max) stays above every
+    mode: an optical mode far above the acoustic ones leaves C short and raises θ_eff."""
+    from modeheat.inversion import _default_top
+
+    T = np.geomspace(2.0, tmax, 100)
+
+    def einstein(theta):  # C/R of one mode, the closed form (common practice)
+        x = theta / T
+        return x**2 * np.exp(-x) / (-np.expm1(-x)) ** 2
+
+    C = R * (3.0 * einstein(low) + 3.0 * einstein(high))  # two atoms: 3 modes at each θ
+    top = _default_top(T, C, 2.0)
+    assert top >= min(12.0 * tmax, 1.3 * high)
+    assert top <= 12.0 * tmax
