@@ -72,7 +72,8 @@ class HeatCapacityView(widgets.VBox):
         self.log_y = widgets.Checkbox(value=False, description="log C or S", indent=False,
                                       layout=widgets.Layout(width="auto"))
         self.components = widgets.Dropdown(options=list(COMPONENT_VIEWS), value="off", description="components",
-                                           layout=widgets.Layout(width="200px"))
+                                           style={"description_width": "initial"},
+                                           layout=widgets.Layout(width="auto"))
         self.components.add_class("mh-components")
         self.fit_axes = widgets.Button(description="fit axes", tooltip="frame every curve again",
                                        layout=widgets.Layout(width="90px"))
@@ -116,7 +117,7 @@ class HeatCapacityView(widgets.VBox):
         )
         self.residual_figure.add_class("mh-residuals")
         self.children = [
-            widgets.HBox([self.representation, self.log_t, self.log_y, self.components, self.fit_axes]),
+            widgets.HBox([self.representation, self.log_t, self.log_y, self.fit_axes, self.components]),
             self.figure,
             self.residual_figure,
             widgets.HBox([self.tmin, self.tmax]),
