@@ -38,7 +38,6 @@ G and H in J/mol (per mole of formula units).
 
 from __future__ import annotations
 
-import dataclasses
 import functools
 import math
 import warnings
@@ -197,21 +196,6 @@ class EOSFit:
     B0: np.ndarray
     B0_prime: np.ndarray
     rms: np.ndarray
-    _coefficients: np.ndarray | None = dataclasses.field(default=None, repr=False)
-    _v_ref: float = dataclasses.field(default=1.0, repr=False)
-
-    def energy(self, V: np.ndarray) -> np.ndarray:
-        """E at V (one V per fit), J/mol."""
-        if self.form == "birch-murnaghan":
-            return _poly_derivatives(self._coefficients, V, self._v_ref)[0]
-        return vinet_energy(V, self.E0, self.V0, self.B0, self.B0_prime)
-
-    def pressure_and_modulus(self, V: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """P = −dE/dV and B = V d²E/dV² at V (one V per fit), Pa."""
-        if self.form == "birch-murnaghan":
-            _, e1, e2, _ = _poly_derivatives(self._coefficients, V, self._v_ref)
-            return -e1, V * e2
-        return _vinet_parts(V, self.V0, self.B0, self.B0_prime)
 
 
 def _fit_polynomial(V: np.ndarray, E: np.ndarray) -> tuple[np.ndarray, float, np.ndarray]:
@@ -366,7 +350,7 @@ def fit_eos(volumes, energies, form: str = "birch-murnaghan", *, volume_unit: st
 def _fit_forms(V: np.ndarray, E: np.ndarray, form: str) -> EOSFit:
     coef, v_ref, rms = _fit_polynomial(V, E)
     e0, V0, B0, Bp = _bm_parameters(coef, v_ref, V)
-    bm = EOSFit("birch-murnaghan", e0, V0, B0, Bp, rms, coef, v_ref)
+    bm = EOSFit("birch-murnaghan", e0, V0, B0, Bp, rms)
     if form == "birch-murnaghan":
         return bm
     if form == "vinet":
@@ -461,7 +445,7 @@ class VolumeSet(Documented):
                     raise InputError(
                         f"the spectra are for different atoms per formula unit: spectrum 1 "
                         f"({spectra[0].name or 'volume 1'}) has {atoms[0]:g}, spectrum {i + 1} "
-                        f"({sp_name(spectra[i], i)}) has {a:g}; one solid has one formula unit", index=i)
+                        f"({spectra[i].name or f'volume {i + 1}'}) has {a:g}; one solid has one formula unit", index=i)
             set_(self, "spectra", spectra)
         if self.name is not None and not isinstance(self.name, str):
             raise InputError(f"name must be a string, not {self.name!r}")
@@ -490,10 +474,6 @@ class VolumeSet(Documented):
                 and self.name == other.name and self.spectra == other.spectra)
 
     __hash__ = None  # type: ignore[assignment]
-
-
-def sp_name(sp: Spectrum, i: int) -> str:
-    return sp.name or f"volume {i + 1}"
 
 
 # --- the table --------------------------------------------------------------------------------------
